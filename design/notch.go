@@ -1,0 +1,70 @@
+package design
+
+import (
+	"fmt"
+	"math"
+)
+
+// notchZPK returns a second-order digital notch with its null exactly at
+// f0 Hz and its edges at the power ratio g2 (1/2 for -3 dB) exactly bw Hz
+// apart, at the given rate.
+//
+// It is the bilinear transform of H(s) = (s^2 + W0^2) / (s^2 + B s + W0^2)
+// with W0 = tan(pi f0 / rate). The analog edges where |H|^2 = g2 satisfy
+// W2 - W1 = B g/sqrt(1-g^2) and W1 W2 = W0^2; their images under the
+// bilinear map then satisfy tan((w2 - w1)/2) = (W2 - W1)/(1 + W0^2), so
+// the digital width w2 - w1 is exact when B is set from it (the same
+// result as the parametric notch of Orfanidis, "Introduction to Signal
+// Processing", 1996, section 11.3, eq. 11.3.7, for g2 = 1/2).
+func notchZPK(f0, bw, rate, g2 float64) ZPK {
+	w0 := Prewarp(f0, rate)
+	width := math.Tan(math.Pi*bw/rate) * (1 + w0*w0) // W2 - W1 of the analog edges
+	b := width * math.Sqrt((1-g2)/g2)
+	// Poles: roots of s^2 + b s + w0^2.
+	disc := complex(b*b/4-w0*w0, 0)
+	sq := csqrt(disc)
+	analog := ZPK{
+		Zeros: []complex128{complex(0, w0), complex(0, -w0)},
+		Poles: []complex128{complex(-b/2, 0) + sq, complex(-b/2, 0) - sq},
+		Gain:  1,
+	}
+	return Bilinear(analog)
+}
+
+// notchCentres lists the notch frequencies of a notch stage at a rate:
+// the fundamental and its harmonics (odd ones only if asked), up to the
+// harmonic number given (0: all), keeping each whose band lies below the
+// Nyquist frequency. It also returns the bandwidth of each.
+func notchCentres(st Stage, rate float64) ([]float64, []float64, error) {
+	nyq := rate / 2
+	f0 := st.FundamentalHz
+	var centres, widths []float64
+	for h := 1; ; h++ {
+		if st.Harmonics > 0 && h > st.Harmonics {
+			break
+		}
+		if st.OddOnly && h%2 == 0 {
+			continue
+		}
+		f := f0 * float64(h)
+		bw := st.BandwidthHz
+		if st.Q > 0 {
+			bw = f / st.Q
+		}
+		if f+bw/2 >= nyq {
+			if h == 1 {
+				return nil, nil, fmt.Errorf("design: notch at %g Hz with %g Hz bandwidth does not fit below the Nyquist frequency %g Hz of the %g Hz rate", f, bw, nyq, rate)
+			}
+			break
+		}
+		if f-bw/2 <= 0 {
+			return nil, nil, fmt.Errorf("design: notch at %g Hz is narrower than its %g Hz bandwidth reaches: use a smaller bandwidth_hz or a larger q", f, bw)
+		}
+		centres = append(centres, f)
+		widths = append(widths, bw)
+		if len(centres) > 4*MaxOrder {
+			return nil, nil, fmt.Errorf("design: more than %d notches below the Nyquist frequency %g Hz: set harmonics to limit them", 4*MaxOrder, nyq)
+		}
+	}
+	return centres, widths, nil
+}
