@@ -157,12 +157,14 @@ func (f *Filter) MaxPoleRadius() float64 {
 	return r
 }
 
-// DecaySamples returns the number of samples after which the impulse
-// response of one pass of the chain stays below its peak by dB decibels.
-// It runs the impulse through the sections, for at most maxSamples
-// samples (0: no limit beyond what the dominant pole predicts), and
-// falls back to the dominant-pole estimate ln(10^(-dB/20)) / ln(r) when
-// the response is still ringing at that limit.
+// DecaySamples returns the number of samples it takes a transient of the
+// chain to die away by dB decibels: the larger of the time the slowest
+// natural mode needs to decay that much, ln(10^(-dB/20)) / ln(r) for the
+// largest pole radius r, and the time after which the impulse response
+// stays below its peak by dB (simulated through the sections, for at most
+// maxSamples samples; 0 means no limit beyond eight times the first
+// figure). The first figure is what matters for hum notches, whose
+// impulse response is small but rings for as long as their poles say.
 func (f *Filter) DecaySamples(dB float64, maxSamples int) int {
 	secs := f.Sections()
 	r := f.MaxPoleRadius()
@@ -174,17 +176,15 @@ func (f *Filter) DecaySamples(dB float64, maxSamples int) int {
 	if maxSamples > 0 && limit > maxSamples {
 		limit = maxSamples
 	}
-	var st [][2]float64 = make([][2]float64, len(secs))
-	thr := 0.0
-	peak := 0.0
-	last := 0
+	st := make([][2]float64, len(secs))
+	thr, peak, last := 0.0, 0.0, 0
 	for n := 0; n < limit; n++ {
 		x := 0.0
 		if n == 0 {
 			x = 1
 		}
 		for i, s := range secs {
-			// transposed direct form II
+			// Transposed direct form II.
 			y := s[0]*x + st[i][0]
 			st[i][0] = s[1]*x - s[4]*y + st[i][1]
 			st[i][1] = s[2]*x - s[5]*y
@@ -199,10 +199,7 @@ func (f *Filter) DecaySamples(dB float64, maxSamples int) int {
 			last = n
 		}
 	}
-	if last >= limit-1 && est > last {
-		return est
-	}
-	return last + 1
+	return max(est, last+1)
 }
 
 // ThreeDBPointsHz lists the frequencies where the effective response

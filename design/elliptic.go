@@ -93,7 +93,12 @@ func ellipJ(u, m float64) (sn, cn, dn float64) {
 		phi = (math.Asin(t) + phi) / 2
 	}
 	sn, cn = math.Sincos(phi)
-	return sn, cn, cn / math.Cos(phi-prev)
+	// Near the quarter period cn/cos(phi - prev) is 0/0; use
+	// dn = sqrt(1 - m sn^2) there (DLMF 22.10.5).
+	if f := math.Cos(phi - prev); math.Abs(f) >= 0.1 {
+		return sn, cn, cn / f
+	}
+	return sn, cn, math.Sqrt(1 - m*sn*sn)
 }
 
 // complement returns sqrt(1 - k^2) computed as sqrt((1-k)(1+k)).

@@ -31,6 +31,9 @@ func notchZPK(f0, bw, rate, g2 float64) ZPK {
 	return Bilinear(analog)
 }
 
+// MaxNotches is the largest number of notches one notch stage may hold.
+const MaxNotches = 1024
+
 // notchCentres lists the notch frequencies of a notch stage at a rate:
 // the fundamental and its harmonics (odd ones only if asked), up to the
 // harmonic number given (0: all), keeping each whose band lies below the
@@ -62,8 +65,8 @@ func notchCentres(st Stage, rate float64) ([]float64, []float64, error) {
 		}
 		centres = append(centres, f)
 		widths = append(widths, bw)
-		if len(centres) > 4*MaxOrder {
-			return nil, nil, fmt.Errorf("design: more than %d notches below the Nyquist frequency %g Hz: set harmonics to limit them", 4*MaxOrder, nyq)
+		if len(centres) > MaxNotches {
+			return nil, nil, fmt.Errorf("design: more than %d notches below the Nyquist frequency %g Hz: set harmonics to limit them", MaxNotches, nyq)
 		}
 	}
 	return centres, widths, nil
