@@ -260,17 +260,7 @@ func (e *Estimator) run(x, y []float64) {
 	if nw == 1 {
 		e.segments(e.work[0], x, y, 0, nseg, nq, median)
 	} else {
-		var wg sync.WaitGroup
-		for i := 0; i < nw; i++ {
-			lo, hi := i*nseg/nw, (i+1)*nseg/nw
-			wk := e.work[i]
-			wg.Add(1)
-			go func() {
-				defer wg.Done()
-				e.segments(wk, x, y, lo, hi, nq, median)
-			}()
-		}
-		wg.Wait()
+		e.parallel(nw, x, y, nseg, nq, median)
 	}
 	nb := e.nbins
 	out := e.out[:stride]
@@ -304,6 +294,22 @@ func (e *Estimator) run(x, y []float64) {
 			o[k] *= e.scale[k]
 		}
 	}
+}
+
+// parallel splits the nseg segments into nw contiguous ranges, one per
+// goroutine and worker.
+func (e *Estimator) parallel(nw int, x, y []float64, nseg, nq int, median bool) {
+	var wg sync.WaitGroup
+	for i := 0; i < nw; i++ {
+		lo, hi := i*nseg/nw, (i+1)*nseg/nw
+		wk := e.work[i]
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			e.segments(wk, x, y, lo, hi, nq, median)
+		}()
+	}
+	wg.Wait()
 }
 
 // segments processes segments [lo, hi) with the buffers of wk: it adds their
