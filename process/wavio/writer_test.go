@@ -25,14 +25,14 @@ func TestScale(t *testing.T) {
 		{8, -1, []byte{0}},
 		{8, 127.0 / 128, []byte{255}},
 		{8, 0.5, []byte{192}},
-		{16, 0.5, []byte{0x00, 0x40}},                 // 16384
-		{16, -1, []byte{0x00, 0x80}},                  // -32768
-		{16, 2.5 / 32768, []byte{0x02, 0x00}},         // 2.5 rounds to even 2
-		{16, 3.5 / 32768, []byte{0x04, 0x00}},         // 3.5 rounds to even 4
-		{16, -2.5 / 32768, []byte{0xfe, 0xff}},        // -2.5 rounds to -2
+		{16, 0.5, []byte{0x00, 0x40}},                  // 16384
+		{16, -1, []byte{0x00, 0x80}},                   // -32768
+		{16, 2.5 / 32768, []byte{0x02, 0x00}},          // 2.5 rounds to even 2
+		{16, 3.5 / 32768, []byte{0x04, 0x00}},          // 3.5 rounds to even 4
+		{16, -2.5 / 32768, []byte{0xfe, 0xff}},         // -2.5 rounds to -2
 		{24, -1.0 / 8388608, []byte{0xff, 0xff, 0xff}}, // -1
-		{24, 0.25, []byte{0x00, 0x00, 0x20}},          // 2097152
-		{32, -0.5, []byte{0x00, 0x00, 0x00, 0xc0}},    // -1073741824
+		{24, 0.25, []byte{0x00, 0x00, 0x20}},           // 2097152
+		{32, -0.5, []byte{0x00, 0x00, 0x00, 0xc0}},     // -1073741824
 	}
 	for _, c := range cases {
 		f := Format{SampleRate: 8000, Channels: 1, Bits: c.bits, Encoding: PCM}
