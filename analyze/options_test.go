@@ -1,7 +1,9 @@
 package analyze
 
 import (
+	"encoding/json"
 	"errors"
+	"math"
 	"strings"
 	"testing"
 )
@@ -174,5 +176,64 @@ func TestWorkersAgree(t *testing.T) {
 				t.Fatalf("workers %d bin %d: %v, one worker %v", w, k, got[k], ref[k])
 			}
 		}
+	}
+}
+
+func TestResultJSON(t *testing.T) {
+	x := [][]float64{whiteNoise(1, 2000, 1), whiteNoise(2, 2000, 0.5)}
+	e := mustEstimator(t, Options{SampleRate: 8000, Segment: 256, Overlap: 128, Window: Window{Kind: Kaiser, Beta: 5}})
+	r, err := e.Spectra(x)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := json.Marshal(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m map[string]any
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	// The keys of the spectrum document in DESIGN.md.
+	for _, k := range []string{"sample_rate_hz", "window", "segment", "overlap", "scaling", "units", "frequencies_hz", "channels"} {
+		if _, ok := m[k]; !ok {
+			t.Errorf("key %q missing from %s", k, b[:200])
+		}
+	}
+	if r.Window != "kaiser:5" || r.Units != "FS^2/Hz" || r.Scaling != "density" || len(r.Channels) != 2 {
+		t.Errorf("result %+v", r)
+	}
+	for c := range x {
+		p, _ := e.PSD(nil, x[c])
+		for k := range p {
+			if p[k] != r.Channels[c][k] {
+				t.Fatalf("channel %d bin %d: %g, PSD %g", c, k, r.Channels[c][k], p[k])
+			}
+		}
+	}
+}
+
+func TestToneScalingsAgree(t *testing.T) {
+	// The same tone read from a density and from a power spectrum: the two
+	// differ by the ENBW in Hz (Harris 1978, eq. (11)), which Tone undoes.
+	x := sine(40000, 48000, 1234.5, 0.3, 0)
+	noise := whiteNoise(3, len(x), 1e-4)
+	for i := range x {
+		x[i] += noise[i]
+	}
+	var tones [2]Tone
+	for i, s := range []Scaling{Density, Spectrum} {
+		e := mustEstimator(t, Options{SampleRate: 48000, Segment: 2048, Overlap: 1024, Window: Window{Kind: FlatTop}, Scaling: s})
+		p, _ := e.PSD(nil, x)
+		var err error
+		if tones[i], err = e.Tone(p, 1234.5); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if d := tones[0].LevelDB - tones[1].LevelDB; math.Abs(d) > 1e-9 {
+		t.Errorf("density %.6f dBFS, spectrum %.6f dBFS", tones[0].LevelDB, tones[1].LevelDB)
+	}
+	if d := tones[0].FloorDB - tones[1].FloorDB; math.Abs(d) > 1e-9 {
+		t.Errorf("floors %.6f and %.6f dBFS^2/Hz", tones[0].FloorDB, tones[1].FloorDB)
 	}
 }

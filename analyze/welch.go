@@ -99,7 +99,7 @@ func NewEstimator(o Options) (*Estimator, error) {
 			w.z = make([]complex128, n/2)
 		} else {
 			w.seg = make([]float64, n)
-			w.gfft = fourier.NewFFT(n)
+			w.gfft = newGonumFFT(n)
 		}
 		e.work[i] = w
 	}
@@ -424,6 +424,8 @@ func medianOf(v []float64) float64 {
 	}
 	return 0.5 * (v[h-1] + v[h])
 }
+
+func newGonumFFT(n int) *fourier.FFT { return fourier.NewFFT(n) }
 
 // nan is returned where a quantity is undefined.
 var nan = math.NaN()
