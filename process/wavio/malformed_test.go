@@ -96,7 +96,9 @@ func malformedCorpus() []badCase {
 		{name: "second fmt", data: riff(chunks(ck("fmt ", fmt16), ck("fmt ", fmt16), ck("data", pcm16))), isErr: isInvalid, msg: "second fmt"},
 
 		{name: "odd chunk without pad", data: riff(chunks(ck("fmt ", fmt16), ckSize("note", 3, []byte("abc")), ck("data", pcm16))), warn: []WarningKind{WarnMissingPad}, samples: pcm16Samples},
-		{name: "data size 0", data: riff(chunks(ck("fmt ", fmt16), ckSize("data", 0, pcm16))), warn: []WarningKind{WarnUnfinalized}, samples: pcm16Samples},
+		{name: "data size 0", data: zeroRIFF(riff(chunks(ck("fmt ", fmt16), ckSize("data", 0, pcm16)))), warn: []WarningKind{WarnUnfinalized}, samples: pcm16Samples},
+		{name: "data and riff size ffffffff", data: ffRIFF(riff(chunks(ck("fmt ", fmt16), ckSize("data", 0xFFFFFFFF, pcm16)))), warn: []WarningKind{WarnUnfinalized}, samples: pcm16Samples},
+		{name: "empty data then chunk", data: riff(chunks(ck("fmt ", fmt16), ck("data", nil), ck("note", []byte("x")))), warn: nil, samples: nil},
 		{name: "data size ffffffff", data: riff(chunks(ck("fmt ", fmt16), ckSize("data", 0xFFFFFFFF, pcm16))), warn: []WarningKind{WarnUnfinalized}, samples: pcm16Samples},
 		{name: "data overrun", data: riff(chunks(ck("fmt ", fmt16), ckSize("data", 1000, pcm16))), warn: []WarningKind{WarnDataOverrun}, samples: pcm16Samples},
 		{name: "partial frame", data: riff(chunks(ck("fmt ", fmt16), ck("data", pcm16[:14]))), warn: []WarningKind{WarnPartialFrame}, samples: pcm16Samples[:6]},
@@ -107,6 +109,11 @@ func malformedCorpus() []badCase {
 		{name: "zero valid bits", data: riff(chunks(ck("fmt ", extFmt(guid(1), 2, 16, 0)), ck("data", pcm16))), warn: []WarningKind{WarnHeader}, samples: pcm16Samples},
 	}
 }
+
+// zeroRIFF and ffRIFF set the RIFF size as a recorder leaves it before
+// finishing the header.
+func zeroRIFF(b []byte) []byte { copy(b[4:8], []byte{0, 0, 0, 0}); return b }
+func ffRIFF(b []byte) []byte   { copy(b[4:8], []byte{0xff, 0xff, 0xff, 0xff}); return b }
 
 func TestMalformed(t *testing.T) {
 	for _, c := range malformedCorpus() {

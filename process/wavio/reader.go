@@ -339,7 +339,7 @@ func (r *Reader) readHeader() error {
 			}
 		}
 	}
-	if riffSize >= 4 && riffSize < 1<<62 {
+	if riffSize >= 4 && riffSize < 1<<62 && !(riffSize == 0xFFFFFFFF && !r.format.RF64) {
 		r.riffEnd = 8 + riffSize
 	}
 	if r.fileSize >= 0 && r.riffEnd > r.fileSize && !(riffSize == 0 || riffSize == 0xFFFFFFFF) {
@@ -457,9 +457,19 @@ func (r *Reader) parseFmt(b []byte, start int64) error {
 		ext = true
 		valid = int(o.Uint16(b[18:20]))
 		mask = o.Uint32(b[20:24])
+		// A GUID is stored as a 32-bit, two 16-bit and eight single-byte
+		// fields, the integers in the file's byte order: bring a RIFX one
+		// to the little-endian layout before comparing.
+		var g [16]byte
+		copy(g[:], b[24:40])
+		if r.format.BigEndian {
+			g[0], g[1], g[2], g[3] = g[3], g[2], g[1], g[0]
+			g[4], g[5] = g[5], g[4]
+			g[6], g[7] = g[7], g[6]
+		}
 		var tail [14]byte
-		copy(tail[:], b[26:40])
-		sub := o.Uint16(b[24:26])
+		copy(tail[:], g[2:])
+		sub := binary.LittleEndian.Uint16(g[0:2])
 		if tail != guidTail {
 			return UnsupportedError(fmt.Sprintf("encoding: sub-format GUID % x", b[24:40]))
 		}
@@ -530,8 +540,12 @@ func (r *Reader) startData(declared int64, raw32 uint32) error {
 	if r.fileSize >= 0 {
 		left = r.fileSize - r.dataStart
 	}
+	// A data size of 0 is a real empty chunk when a finalised RIFF size
+	// says that more follows it; otherwise it, like 0xFFFFFFFF, is what a
+	// recorder leaves before it finishes the header.
+	emptyOK := raw32 == 0 && r.riffEnd > r.dataStart
 	switch {
-	case !r.format.RF64 && (raw32 == 0 || raw32 == 0xFFFFFFFF) && left != 0:
+	case !r.format.RF64 && (raw32 == 0 || raw32 == 0xFFFFFFFF) && left != 0 && !emptyOK:
 		r.warn(WarnUnfinalized, r.dataStart-4, "data size 0x%08x left unfinalised; reading to the end of the file", raw32)
 		r.dataLen = left // -1 when the size is unknown
 		r.dataOdd = false
