@@ -210,7 +210,9 @@ func (e *Estimator) CSD(dst []complex128, x, y []float64) ([]complex128, error) 
 
 // Coherence writes the magnitude-squared coherence |Pxy|^2 / (Pxx Pyy)
 // (dimensionless, 0..1) into dst and returns it, as scipy.signal.coherence
-// computes it. A bin where Pxx or Pyy is zero reads NaN. It panics if dst is
+// computes it. With Median averaging each of the three spectra is a median
+// (scipy.signal.coherence always averages by the mean). A bin where Pxx or
+// Pyy is zero reads NaN. It panics if dst is
 // not nil and len(dst) != Bins().
 func (e *Estimator) Coherence(dst, x, y []float64) ([]float64, error) {
 	if dst != nil && len(dst) != e.nbins {
