@@ -1,0 +1,257 @@
+package plots
+
+import (
+	"fmt"
+	"image/color"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// DPI is the resolution of PNG output in dots per inch.
+const DPI = vgimg.DefaultDPI
+
+// Limits on the image size: below the minimum the axes and titles no
+// longer fit, above the maximum a PNG would take gigabytes.
+const (
+	minSide = 3 * vg.Inch
+	maxSide = 40 * vg.Inch
+)
+
+// Palette of the plots. The fills are translucent so that the curve
+// stays visible where it crosses a forbidden area.
+var (
+	curveColor    = color.RGBA{R: 0x1f, G: 0x4e, B: 0x79, A: 0xff}  // deep blue
+	secondColor   = color.RGBA{R: 0xb3, G: 0x5c, B: 0x1e, A: 0xff}  // burnt orange
+	passFill      = color.NRGBA{R: 0xe0, G: 0xa8, B: 0x20, A: 0x60} // amber
+	stopFill      = color.NRGBA{R: 0xc0, G: 0x30, B: 0x50, A: 0x48} // rose
+	cutoffColor   = color.RGBA{R: 0x3a, G: 0x7d, B: 0x44, A: 0xff}  // green
+	markColor     = color.RGBA{R: 0x20, G: 0x20, B: 0x20, A: 0xff}  // near black
+	poleColor     = color.RGBA{R: 0xb0, G: 0x1c, B: 0x2e, A: 0xff}  // crimson
+	zeroColor     = color.RGBA{R: 0x1f, G: 0x4e, B: 0x79, A: 0xff}  // deep blue
+	guideColor    = color.RGBA{R: 0x9a, G: 0x9a, B: 0x9a, A: 0xff}  // grey
+	gridColor     = color.RGBA{R: 0xe4, G: 0xe4, B: 0xe4, A: 0xff}  // light grey
+	bandAlpha     = uint8(0x40)
+	defaultTextSz = vg.Points(9)
+)
+
+// checkFormat normalises format and rejects what cannot be rendered.
+func checkFormat(format string) (string, error) {
+	f := strings.ToLower(strings.TrimSpace(format))
+	switch f {
+	case "svg", "png":
+		return f, nil
+	}
+	return "", fmt.Errorf("plots: unsupported format %q: want \"svg\" or \"png\"", format)
+}
+
+// checkSize returns the size to draw at: the defaults for zero values,
+// an error for sizes outside [minSide, maxSide].
+func checkSize(w, h, defW, defH vg.Length) (vg.Length, vg.Length, error) {
+	if w == 0 {
+		w = defW
+	}
+	if h == 0 {
+		h = defH
+	}
+	for _, s := range []vg.Length{w, h} {
+		if !(s >= minSide && s <= maxSide) {
+			return 0, 0, fmt.Errorf("plots: invalid size %v x %v: each side must be between %v and %v", w, h, minSide, maxSide)
+		}
+	}
+	return w, h, nil
+}
+
+// render creates a canvas of the format and size, lets paint draw on it
+// and writes it to w. format must have passed checkFormat.
+func render(w io.Writer, format string, width, height vg.Length, paint func(draw.Canvas)) error {
+	var c vg.CanvasWriterTo
+	switch format {
+	case "svg":
+		c = vgsvg.New(width, height)
+	case "png":
+		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(DPI))}
+	default:
+		return fmt.Errorf("plots: unsupported format %q: want \"svg\" or \"png\"", format)
+	}
+	paint(draw.New(c))
+	if _, err := c.WriteTo(w); err != nil {
+		return fmt.Errorf("plots: writing the %s image: %w", format, err)
+	}
+	return nil
+}
+
+// newPanel returns a plot with the project's text sizes and a grid.
+func newPanel(title, xlabel, ylabel string) *plot.Plot {
+	p := plot.New()
+	p.Title.Text = title
+	p.Title.TextStyle.Font.Size = vg.Points(10)
+	p.Title.Padding = vg.Points(4)
+	p.X.Label.Text = xlabel
+	p.Y.Label.Text = ylabel
+	for _, a := range []*plot.Axis{&p.X, &p.Y} {
+		a.Label.TextStyle.Font.Size = defaultTextSz
+		a.Tick.Label.Font.Size = vg.Points(8)
+		a.Padding = 0
+		a.Tick.Marker = linearTicks{target: 6}
+	}
+	p.Legend.TextStyle.Font.Size = vg.Points(7.5)
+	p.Legend.ThumbnailWidth = vg.Points(14)
+	p.Legend.Padding = vg.Points(1)
+	p.Legend.XOffs = -vg.Points(4)
+	p.Legend.YOffs = -vg.Points(4)
+	p.Legend.Top = true
+	g := plotter.NewGrid()
+	g.Vertical.Color, g.Horizontal.Color = gridColor, gridColor
+	p.Add(g)
+	return p
+}
+
+// logFrequencyAxis sets a logarithmic Hz axis from lo to hi.
+func logFrequencyAxis(p *plot.Plot, lo, hi float64) {
+	p.X.Scale = plot.LogScale{}
+	p.X.Tick.Marker = freqTicks{}
+	p.X.Min, p.X.Max = lo, hi
+	if p.X.Label.Text == "" {
+		p.X.Label.Text = "frequency (Hz)"
+	}
+}
+
+// freqTicks marks every 1-9 multiple of each decade and labels the
+// decades (and 2 and 5 when the axis spans at most two decades), with a
+// k for thousands. Unlike plot.LogTicks it returns no ticks instead of
+// panicking on a range that is not positive.
+type freqTicks struct{}
+
+// Ticks implements plot.Ticker.
+func (freqTicks) Ticks(min, max float64) []plot.Tick {
+	if !(min > 0) || !(max > min) || math.IsInf(max, 0) {
+		return nil
+	}
+	lo, hi := math.Floor(math.Log10(min)), math.Ceil(math.Log10(max))
+	few := hi-lo <= 2
+	const slack = 1e-9 // relative: keep a tick that falls on an end
+	var ticks []plot.Tick
+	for e := lo; e <= hi; e++ {
+		d := math.Pow(10, e)
+		for m := 1; m < 10; m++ {
+			v := d * float64(m)
+			if v < min*(1-slack) || v > max*(1+slack) {
+				continue
+			}
+			t := plot.Tick{Value: v}
+			if m == 1 || few && (m == 2 || m == 5) {
+				t.Label = hzLabel(v)
+			}
+			ticks = append(ticks, t)
+		}
+	}
+	return ticks
+}
+
+// hzLabel formats a frequency for a tick: 0.5, 20, 300, 1k, 20k.
+func hzLabel(v float64) string {
+	if v >= 1000 {
+		return strconv.FormatFloat(v/1000, 'g', 6, 64) + "k"
+	}
+	return strconv.FormatFloat(v, 'g', 6, 64)
+}
+
+// segments splits the points into runs of finite values, dropping the
+// others, so that a curve shows a gap where it is undefined.
+func segments(x, y []float64) []plotter.XYs {
+	var out []plotter.XYs
+	var cur plotter.XYs
+	for i := range x {
+		if isFinite(x[i]) && isFinite(y[i]) {
+			cur = append(cur, plotter.XY{X: x[i], Y: y[i]})
+			continue
+		}
+		if len(cur) > 0 {
+			out = append(out, cur)
+			cur = nil
+		}
+	}
+	if len(cur) > 0 {
+		out = append(out, cur)
+	}
+	return out
+}
+
+func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// addCurve adds a line through the finite points and returns one of its
+// pieces for a legend entry (nil when nothing is finite).
+func addCurve(p *plot.Plot, x, y []float64, sty draw.LineStyle) *plotter.Line {
+	var first *plotter.Line
+	for _, s := range segments(x, y) {
+		l, err := plotter.NewLine(s)
+		if err != nil { // cannot happen: segments keeps finite points only
+			continue
+		}
+		l.LineStyle = sty
+		p.Add(l)
+		if first == nil {
+			first = l
+		}
+	}
+	return first
+}
+
+// textStyle is the style of free text on the canvas.
+func textStyle(size vg.Length) draw.TextStyle {
+	sty := plot.New().Title.TextStyle
+	sty.Font.Size = size
+	sty.XAlign = draw.XCenter
+	sty.YAlign = draw.YTop
+	return sty
+}
+
+// drawHeading writes lines centred at the top of c, the first larger,
+// wrapping those wider than c, and returns c without the space they take.
+func drawHeading(c draw.Canvas, lines []string) draw.Canvas {
+	y := c.Max.Y - vg.Points(6)
+	room := c.Max.X - c.Min.X - vg.Points(12)
+	for i, s := range lines {
+		sty := textStyle(vg.Points(9.5))
+		if i == 0 {
+			sty = textStyle(vg.Points(13))
+		}
+		for _, part := range wrap(s, room, func(s string) vg.Length { return sty.Rectangle(s).Size().X }) {
+			c.FillText(sty, vg.Point{X: c.Center().X, Y: y}, part)
+			y -= sty.Rectangle(part).Size().Y + vg.Points(2)
+		}
+	}
+	c.Max.Y = y - vg.Points(4)
+	return c
+}
+
+// wrap breaks s at spaces into lines no wider than room, as measured by
+// width; a single word wider than room stays whole.
+func wrap(s string, room vg.Length, width func(string) vg.Length) []string {
+	var lines []string
+	cur := ""
+	for _, w := range strings.Fields(s) {
+		next := w
+		if cur != "" {
+			next = cur + " " + w
+		}
+		if cur != "" && width(next) > room {
+			lines = append(lines, cur)
+			next = w
+		}
+		cur = next
+	}
+	if cur != "" {
+		lines = append(lines, cur)
+	}
+	return lines
+}
