@@ -1,0 +1,101 @@
+// Command wavsieve designs IIR filters at each WAV file's own sample rate,
+// runs them over the audio and measures what they did.
+//
+// Exit codes: 0 done, 1 failed (a bad spec, an unreadable file, a failed
+// check), 2 usage error.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+)
+
+func main() {
+	os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr))
+}
+
+// Exit codes.
+const (
+	exitOK    = 0
+	exitFail  = 1
+	exitUsage = 2
+)
+
+type command struct {
+	name    string
+	summary string
+	run     func(args []string, stdin io.Reader, stdout, stderr io.Writer) int
+}
+
+func commands() []command {
+	return []command{
+		{"design", "design a filter from a spec at a sample rate and report or plot it", runDesign},
+	}
+}
+
+const topUsage = `wavsieve filters WAV recordings and measurement files with IIR filters
+designed at each file's own sample rate (bilinear transform with pre-warping),
+and shows what the filters do.
+
+Usage:
+  wavsieve <command> [flags]
+
+Commands:
+%s
+Run 'wavsieve <command> --help' for a command's flags and examples.
+
+Exit codes: 0 done, 1 failed, 2 usage error.
+`
+
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		fmt.Fprintf(stderr, topUsage, commandList())
+		return exitUsage
+	}
+	switch args[0] {
+	case "-h", "--help", "help":
+		fmt.Fprintf(stdout, topUsage, commandList())
+		return exitOK
+	}
+	for _, c := range commands() {
+		if c.name == args[0] {
+			return c.run(args[1:], stdin, stdout, stderr)
+		}
+	}
+	fmt.Fprintf(stderr, "wavsieve: unknown command %q\nRun 'wavsieve --help' for the list of commands.\n", args[0])
+	return exitUsage
+}
+
+func commandList() string {
+	var b strings.Builder
+	for _, c := range commands() {
+		fmt.Fprintf(&b, "  %-9s %s\n", c.name, c.summary)
+	}
+	return b.String()
+}
+
+// usageError marks an error in the command line itself (exit code 2).
+type usageError struct{ msg string }
+
+func (e usageError) Error() string { return e.msg }
+
+func usagef(format string, a ...any) error { return usageError{fmt.Sprintf(format, a...)} }
+
+// report prints err for command cmd and returns the exit code: 2 with a
+// pointer to the help for a usage error, 1 otherwise, with a hint line
+// where one helps.
+func report(stderr io.Writer, cmd string, err error, hint string) int {
+	var ue usageError
+	if errors.As(err, &ue) {
+		fmt.Fprintf(stderr, "wavsieve %s: %v\nRun 'wavsieve %s --help' for usage.\n", cmd, err, cmd)
+		return exitUsage
+	}
+	fmt.Fprintf(stderr, "wavsieve %s: %v\n", cmd, err)
+	if hint != "" {
+		fmt.Fprintf(stderr, "hint: %s\n", hint)
+	}
+	return exitFail
+}

@@ -1,0 +1,118 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/pflag"
+	"github.com/wavsieve/wavsieve/design"
+)
+
+// specFlags are the flags that describe a filter on the command line, for
+// every command that takes a spec. A spec file (--spec) and these flags
+// are alternatives; --zero-phase applies to either.
+type specFlags struct {
+	file        string
+	family      string
+	response    string
+	order       int
+	cutoff      string
+	passband    string
+	stopband    string
+	ripple      float64
+	attenuation float64
+	besselNorm  string
+	fundamental float64
+	harmonics   int
+	bandwidth   float64
+	q           float64
+	oddOnly     bool
+	zeroPhase   bool
+}
+
+func (s *specFlags) register(fs *pflag.FlagSet) {
+	fs.StringVar(&s.file, "spec", "", "read the filter spec from a JSON `file`")
+	fs.StringVar(&s.family, "family", "", "filter `family`: butterworth, chebyshev1, chebyshev2, elliptic, bessel or notch")
+	fs.StringVar(&s.response, "response", "", "`type`: lowpass, highpass, bandpass or bandstop")
+	fs.IntVar(&s.order, "order", 0, "prototype `order` (a band response has twice as many poles); omit for the minimum order from --passband/--stopband")
+	fs.StringVar(&s.cutoff, "cutoff", "", "critical frequency in Hz, or two as `lo,hi` for a band (with --order)")
+	fs.StringVar(&s.passband, "passband", "", "passband edge(s) in Hz, `f` or lo,hi, for the minimum-order form")
+	fs.StringVar(&s.stopband, "stopband", "", "stopband edge(s) in Hz, `f` or lo,hi, for the minimum-order form")
+	fs.Float64Var(&s.ripple, "ripple", 0, "largest passband ripple in `dB`")
+	fs.Float64Var(&s.attenuation, "attenuation", 0, "smallest stopband attenuation in `dB`")
+	fs.StringVar(&s.besselNorm, "bessel-norm", "", "Bessel normalisation: phase (default), delay or magnitude")
+	fs.Float64Var(&s.fundamental, "hum", 0, "notch: mains fundamental in `Hz` (for example 50 or 60)")
+	fs.IntVar(&s.harmonics, "harmonics", 0, "notch: highest harmonic `number` to notch (0: all below Nyquist)")
+	fs.Float64Var(&s.bandwidth, "notch-width", 0, "notch: -3 dB width of each notch in `Hz`")
+	fs.Float64Var(&s.q, "notch-q", 0, "notch: constant quality factor `Q` (width = centre / Q) instead of --notch-width")
+	fs.BoolVar(&s.oddOnly, "odd-only", false, "notch: odd harmonics only")
+	fs.BoolVar(&s.zeroPhase, "zero-phase", false, "run forward and backward: the squared response meets the spec")
+}
+
+// spec builds the spec from the file or from the flags.
+func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
+	inline := []string{"family", "response", "order", "cutoff", "passband", "stopband", "ripple", "attenuation", "bessel-norm", "hum", "harmonics", "notch-width", "notch-q", "odd-only"}
+	var set []string
+	for _, n := range inline {
+		if fs.Changed(n) {
+			set = append(set, "--"+n)
+		}
+	}
+	if s.file != "" {
+		if len(set) > 0 {
+			return design.Spec{}, usagef("give the filter either with --spec or with flags, not both (also set: %s)", strings.Join(set, ", "))
+		}
+		b, err := os.ReadFile(s.file)
+		if err != nil {
+			return design.Spec{}, err
+		}
+		sp, err := design.ParseSpec(b)
+		if err != nil {
+			return design.Spec{}, fmt.Errorf("%s: %w", s.file, err)
+		}
+		if s.zeroPhase {
+			sp.ZeroPhase = true
+		}
+		return sp, nil
+	}
+	if s.family == "" {
+		return design.Spec{}, usagef("no filter given: use --spec FILE, or --family with its flags")
+	}
+	st := design.Stage{
+		Family: s.family, Response: s.response, Order: s.order,
+		RippleDB: s.ripple, AttenuationDB: s.attenuation, BesselNorm: s.besselNorm,
+		FundamentalHz: s.fundamental, Harmonics: s.harmonics, BandwidthHz: s.bandwidth, Q: s.q, OddOnly: s.oddOnly,
+	}
+	var err error
+	if st.CutoffHz, err = parseEdges("--cutoff", s.cutoff); err != nil {
+		return design.Spec{}, err
+	}
+	if st.PassbandHz, err = parseEdges("--passband", s.passband); err != nil {
+		return design.Spec{}, err
+	}
+	if st.StopbandHz, err = parseEdges("--stopband", s.stopband); err != nil {
+		return design.Spec{}, err
+	}
+	return design.Spec{Stages: []design.Stage{st}, ZeroPhase: s.zeroPhase}, nil
+}
+
+func parseEdges(flag, v string) (design.Edges, error) {
+	if v == "" {
+		return nil, nil
+	}
+	parts := strings.Split(v, ",")
+	if len(parts) > 2 {
+		return nil, usagef("%s takes one frequency or two as lo,hi, got %q", flag, v)
+	}
+	e := make(design.Edges, len(parts))
+	for i, p := range parts {
+		f, err := strconv.ParseFloat(strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(p), "Hz")), 64)
+		if err != nil {
+			return nil, usagef("%s: %q is not a frequency in Hz", flag, p)
+		}
+		e[i] = f
+	}
+	return e, nil
+}
