@@ -6,7 +6,6 @@ import (
 	"image"
 	_ "image/png" // registers the PNG decoder for image.Decode
 	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -143,5 +142,3 @@ func TestDesignWritePNG(t *testing.T) {
 		checkPNG(t, b, 10*DPI, 7.5*DPI)
 	}
 }
-
-var _ = math.Pi

@@ -137,7 +137,7 @@ func (freqTicks) Ticks(min, max float64) []plot.Tick {
 		return nil
 	}
 	lo, hi := math.Floor(math.Log10(min)), math.Ceil(math.Log10(max))
-	few := hi-lo <= 2
+	few := math.Log10(max/min) <= 2
 	const slack = 1e-9 // relative: keep a tick that falls on an end
 	var ticks []plot.Tick
 	for e := lo; e <= hi; e++ {

@@ -8,7 +8,8 @@ import (
 )
 
 // linearTicks labels a linear axis at about target round values (steps
-// of 1, 2, 2.5 or 5 times a power of ten, or with degrees set and a span
+// of 1, 2 or 5 times a power of ten, whichever is nearest in ratio to
+// the span over target, or with degrees set and a span
 // of at least a half turn, multiples of 90 degrees), with one unlabelled
 // tick between labels.
 type linearTicks struct {
@@ -35,15 +36,12 @@ func (t linearTicks) Ticks(min, max float64) []plot.Tick {
 		}
 	} else {
 		e := math.Floor(math.Log10(raw))
-		mag := math.Pow(10, e)
-		for _, m := range []float64{1, 2, 2.5, 5, 10} {
-			if m*mag >= raw*(1-1e-9) {
-				step = m * mag
-				decimals = int(math.Max(0, -e))
-				if m == 2.5 {
-					decimals++
-				}
-				break
+		best := math.Inf(1)
+		for _, m := range []float64{1, 2, 5, 10} {
+			c := m * math.Pow(10, e)
+			if d := math.Abs(math.Log(c / raw)); d < best {
+				best, step = d, c
+				decimals = int(math.Max(0, -math.Floor(math.Log10(c)+1e-9)))
 			}
 		}
 	}
