@@ -52,11 +52,12 @@
 //
 // [ZeroPhase] runs the cascade forward and then backward, so the phase
 // cancels and the magnitude response is squared. It streams: the forward
-// pass goes to a float64 spill file in a directory the caller names, the
-// backward pass reads it back in reverse blocks and writes each block's
-// final values over it, and a last forward read delivers the result in
-// forward order. Memory stays bounded (blocks plus the edge buffers,
-// limited to under 100 MB) whatever the file's length. [ZeroPhaseSlice]
+// pass goes to a float64 spill (the first 112 MiB in memory, the rest in
+// a file in a directory the caller names), the backward pass reads it
+// back in reverse blocks and writes each block's final values over it,
+// and a last forward read delivers the result in forward order. Memory
+// stays under 200 MB (spill part, edge buffers under 48 MiB, blocks)
+// whatever the file's length. [ZeroPhaseSlice]
 // does the same in memory, with the same result bit for bit.
 //
 // The ends are extended before filtering, as scipy.signal.sosfiltfilt

@@ -1,0 +1,574 @@
+package process
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"unsafe"
+
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/wavsieve/wavsieve/design"
+)
+
+// Extension chooses how the zero-phase functions extend the signal
+// beyond its ends before filtering.
+type Extension int
+
+const (
+	// ExtendOdd reflects the signal about its end values:
+	// 2*x[0] - x[pad..1] before the start and 2*x[N-1] - x[N-2..N-1-pad]
+	// after the end (scipy.signal.sosfiltfilt, padtype='odd').
+	ExtendOdd Extension = iota
+	// ExtendTones fits, per channel, a constant plus a sine and a cosine
+	// at each of ToneHz by least squares to the first and to the last
+	// FitFrames frames, and extrapolates each model into the pad. For
+	// notch stages: a reflected hum does not continue the hum in phase,
+	// so the notch rings at the ends; the fitted hum does, and the ends
+	// come out clean.
+	ExtendTones
+)
+
+// ZeroPhaseOptions are the parameters of a forward-backward run.
+type ZeroPhaseOptions struct {
+	// PadFrames is the length of the extension at each end, sized by the
+	// caller from the decay of the filter's impulse response. With
+	// ExtendOdd it is shortened to frames-1 on a shorter signal.
+	PadFrames int
+	// DecayFrames is the number of frames the caller considers the
+	// impulse response to need to die out. It only feeds the report.
+	DecayFrames int
+
+	Extension Extension
+	// ToneHz, SampleRateHz and FitFrames are for ExtendTones. Each
+	// frequency must lie strictly between 0 and SampleRateHz/2, and the
+	// fit needs at least 1 + 2*len(ToneHz) frames.
+	ToneHz       []float64
+	SampleRateHz float64
+	FitFrames    int
+
+	// TempDir is the directory of the spill file of ZeroPhase; "" means
+	// os.TempDir(). ZeroPhaseSlice does not use it.
+	TempDir string
+	// SpillMemoryBytes is how much of the spill ZeroPhase keeps in memory
+	// before it goes to the file (rounded down to 8 MiB steps): 0 means
+	// 112 MiB, a negative value none.
+	SpillMemoryBytes int64
+	// BlockFrames is the block length of the passes; 0 means 8192.
+	BlockFrames int
+}
+
+// EdgeReport describes the edges of a zero-phase run.
+type EdgeReport struct {
+	Frames int // frames in the signal
+	// PadFrames is the extension used at each end; PadShortened is true
+	// when it is less than the requested PadFrames because the signal
+	// was too short.
+	PadFrames    int
+	PadShortened bool
+	// FitFrames is the number of frames fitted at each end (ExtendTones).
+	FitFrames int
+	// TransientFrames estimates how many frames at each end may still
+	// carry a start-up transient: DecayFrames - PadFrames, or 0.
+	TransientFrames int
+}
+
+// FrameSource delivers interleaved frames in forward order. ReadFrames
+// works like io.Reader.Read: it fills dst with up to len(dst)/channels
+// whole frames, returns how many, and io.EOF at the end; the caller
+// uses the frames before looking at the error. It must not keep dst.
+type FrameSource interface {
+	ReadFrames(dst []float64) (frames int, err error)
+}
+
+// FrameSink receives interleaved frames in forward order. It must not
+// keep src after returning.
+type FrameSink interface {
+	WriteFrames(src []float64) error
+}
+
+// memBudget bounds the buffers held for the edges (head, tail, pads, the
+// tone fit) and spillMemory the part of the spill held in memory, so
+// that peak memory stays under 200 MB whatever the file size.
+const (
+	memBudget   = 48 << 20
+	spillMemory = 112 << 20
+)
+
+const defaultBlockFrames = 8192
+
+// ZeroPhase filters src forward and then backward with the sections and
+// writes the result to dst in forward order, streaming: the forward
+// pass goes to a float64 spill (its first opt.SpillMemoryBytes in
+// memory, the rest in a file in opt.TempDir, removed before returning),
+// the backward pass reads it back in reverse blocks and overwrites each
+// block with its final values, and a last forward read feeds dst.
+// Memory stays bounded (edge buffers under 48 MiB, the in-memory spill,
+// a few blocks); disk use is 8 bytes per sample beyond the in-memory
+// part.
+//
+// The edges follow scipy.signal.sosfiltfilt: the signal is extended at
+// both ends (opt.Extension), the forward pass starts in the steady state
+// of its first extended frame and the backward pass in the steady
+// state of the last forward output. The result equals
+// ZeroPhaseSlice's bit for bit.
+func ZeroPhase(dst FrameSink, src FrameSource, sos []design.Section, cfg Config, opt ZeroPhaseOptions) (EdgeReport, error) {
+	z, err := newZeroPhase(sos, cfg, opt)
+	if err != nil {
+		return EdgeReport{}, err
+	}
+	mem := int64(spillMemory)
+	if opt.SpillMemoryBytes != 0 {
+		mem = max(0, opt.SpillMemoryBytes)
+	}
+	st := &spillStore{dir: opt.TempDir, memLimit: int(mem/8) / spillChunk * spillChunk}
+	defer st.close()
+	rep, err := z.run(src, st)
+	if err != nil {
+		return rep, err
+	}
+	out := make([]float64, z.block*z.ch)
+	for at := 0; at < rep.Frames; at += z.block {
+		n := min(z.block, rep.Frames-at)
+		p := out[:n*z.ch]
+		if err := st.read(p, at*z.ch); err != nil {
+			return rep, err
+		}
+		if err := dst.WriteFrames(p); err != nil {
+			return rep, fmt.Errorf("process: zero-phase output: %w", err)
+		}
+	}
+	return rep, nil
+}
+
+// ZeroPhaseSlice is ZeroPhase for a signal held in memory: it filters
+// the interleaved frames of src into dst and returns dst. dst may be src;
+// a nil dst is allocated. It panics if len(src) is not a whole number
+// of frames or if dst is not nil and len(dst) != len(src).
+func ZeroPhaseSlice(dst, src []float64, sos []design.Section, cfg Config, opt ZeroPhaseOptions) ([]float64, EdgeReport, error) {
+	z, err := newZeroPhase(sos, cfg, opt)
+	if err != nil {
+		return dst, EdgeReport{}, err
+	}
+	if len(src)%z.ch != 0 {
+		panic(fmt.Sprintf("process: ZeroPhaseSlice: %d samples is not a whole number of %d-channel frames", len(src), z.ch))
+	}
+	if dst == nil {
+		dst = make([]float64, len(src))
+	}
+	if len(dst) != len(src) {
+		panic(fmt.Sprintf("process: ZeroPhaseSlice: len(dst) = %d, len(src) = %d", len(dst), len(src)))
+	}
+	rep, err := z.run(&sliceSource{x: src, ch: z.ch}, memStore(dst))
+	return dst, rep, err
+}
+
+type zeroPhase struct {
+	c     *Cascade
+	ch    int
+	block int
+	opt   ZeroPhaseOptions
+	omega []float64 // tone frequencies, radians per frame
+}
+
+func newZeroPhase(sos []design.Section, cfg Config, opt ZeroPhaseOptions) (*zeroPhase, error) {
+	cfg.SteadyStart = false
+	c, err := NewCascade(sos, cfg)
+	if err != nil {
+		return nil, err
+	}
+	z := &zeroPhase{c: c, ch: cfg.Channels, block: opt.BlockFrames, opt: opt}
+	if z.block == 0 {
+		z.block = defaultBlockFrames
+	}
+	if z.block < 0 {
+		return nil, fmt.Errorf("process: invalid block length %d frames", opt.BlockFrames)
+	}
+	if opt.PadFrames < 0 {
+		return nil, fmt.Errorf("process: invalid pad length %d frames", opt.PadFrames)
+	}
+	if opt.DecayFrames < 0 {
+		return nil, fmt.Errorf("process: invalid decay length %d frames", opt.DecayFrames)
+	}
+	switch opt.Extension {
+	case ExtendOdd:
+	case ExtendTones:
+		if !(opt.SampleRateHz > 0) || math.IsInf(opt.SampleRateHz, 0) {
+			return nil, fmt.Errorf("process: invalid sample rate %v Hz for the tone extension", opt.SampleRateHz)
+		}
+		if len(opt.ToneHz) == 0 {
+			return nil, errors.New("process: tone extension without frequencies")
+		}
+		for _, f := range opt.ToneHz {
+			if !(f > 0 && f < opt.SampleRateHz/2) {
+				return nil, fmt.Errorf("process: invalid tone frequency %v Hz: must lie between 0 and %v Hz (Nyquist)", f, opt.SampleRateHz/2)
+			}
+			z.omega = append(z.omega, 2*math.Pi*f/opt.SampleRateHz)
+		}
+		if opt.FitFrames < 1+2*len(opt.ToneHz) {
+			return nil, fmt.Errorf("process: invalid fit length %d frames: %d tones need at least %d", opt.FitFrames, len(opt.ToneHz), 1+2*len(opt.ToneHz))
+		}
+	default:
+		return nil, fmt.Errorf("process: unsupported extension %d", opt.Extension)
+	}
+	// Head and tail buffers, two pad buffers, and the fit's design matrix.
+	edge := float64(2*(opt.PadFrames+1+opt.FitFrames)+2*opt.PadFrames) * float64(z.ch) * 8
+	edge += float64(opt.FitFrames) * float64(1+2*len(opt.ToneHz)) * 8 * 2
+	if edge > memBudget {
+		return nil, fmt.Errorf("process: unsupported edge length: pad of %d and fit of %d frames need %.0f MB, more than %d MB", opt.PadFrames, opt.FitFrames, edge/1e6, memBudget>>20)
+	}
+	return z, nil
+}
+
+// run does the forward pass into st, then the backward pass in place
+// in st. Positions in st are sample indices of the signal.
+func (z *zeroPhase) run(src FrameSource, st store) (EdgeReport, error) {
+	ch, c := z.ch, z.c
+	rep := EdgeReport{PadFrames: z.opt.PadFrames}
+	pad := z.opt.PadFrames
+	keep := pad + 1 // frames kept at each end
+	if z.opt.Extension == ExtendTones {
+		keep = max(keep, z.opt.FitFrames)
+	}
+
+	// Head: the first keep frames, to build the left extension.
+	head := make([]float64, keep*ch)
+	nh, eof, err := readFull(src, head, ch)
+	if err != nil {
+		return rep, err
+	}
+	head = head[:nh*ch]
+	if nh == 0 {
+		return EdgeReport{}, nil
+	}
+	if eof {
+		rep.Frames = nh
+	}
+	if z.opt.Extension == ExtendOdd && eof && pad > nh-1 {
+		pad = nh - 1
+		rep.PadFrames, rep.PadShortened = pad, true
+	}
+	padBuf := make([]float64, pad*ch)
+	if err := z.extendLeft(padBuf, head, &rep); err != nil {
+		return rep, err
+	}
+	first := head[:ch]
+	if pad > 0 {
+		first = padBuf[:ch]
+	}
+	c.Reset()
+	c.Prime(first)
+	c.Process(padBuf, padBuf) // output before the signal is not wanted
+
+	// Forward pass over the signal, keeping the last keep input frames.
+	tail := newRing(keep, ch)
+	buf := make([]float64, z.block*ch)
+	last := make([]float64, ch) // last forward output
+	at := 0
+	forward := func(p []float64) error {
+		tail.push(p)
+		c.Process(p, p)
+		copy(last, p[len(p)-ch:])
+		err := st.write(p, at)
+		at += len(p)
+		return err
+	}
+	for i := 0; i < len(head); i += len(buf) {
+		if err := forward(head[i:min(i+len(buf), len(head))]); err != nil {
+			return rep, err
+		}
+	}
+	for !eof {
+		var n int
+		n, eof, err = readFull(src, buf, ch)
+		if err != nil {
+			return rep, err
+		}
+		if n > 0 {
+			if err := forward(buf[:n*ch]); err != nil {
+				return rep, err
+			}
+		}
+	}
+	frames := at / ch
+	rep.Frames = frames
+
+	// Right extension, filtered forward; its output is the start of the
+	// backward pass.
+	if err := z.extendRight(padBuf, tail.frames(), &rep); err != nil {
+		return rep, err
+	}
+	c.Process(padBuf, padBuf)
+	if pad > 0 {
+		copy(last, padBuf[len(padBuf)-ch:])
+	}
+
+	// Backward pass: the right extension, then the signal in reverse
+	// blocks, each written back over its forward values.
+	c.Reset()
+	c.Prime(last)
+	reverseFrames(padBuf, ch)
+	c.Process(padBuf, padBuf)
+	for end := frames; end > 0; {
+		start := max(0, end-z.block)
+		p := buf[:(end-start)*ch]
+		if err := st.read(p, start*ch); err != nil {
+			return rep, err
+		}
+		reverseFrames(p, ch)
+		c.Process(p, p)
+		reverseFrames(p, ch)
+		if err := st.write(p, start*ch); err != nil {
+			return rep, err
+		}
+		end = start
+	}
+	rep.TransientFrames = max(0, z.opt.DecayFrames-rep.PadFrames)
+	return rep, nil
+}
+
+// extendLeft fills pad (the frames before the signal, in time order)
+// from the head of the signal.
+func (z *zeroPhase) extendLeft(pad, head []float64, rep *EdgeReport) error {
+	ch := z.ch
+	n := len(pad) / ch
+	if z.opt.Extension == ExtendOdd {
+		// pad[j] = 2*x[0] - x[n-j]
+		for j := 0; j < n; j++ {
+			for k := 0; k < ch; k++ {
+				pad[j*ch+k] = 2*head[k] - head[(n-j)*ch+k]
+			}
+		}
+		return nil
+	}
+	fit := min(z.opt.FitFrames, len(head)/ch)
+	rep.FitFrames = fit
+	return z.extrapolate(pad, head[:fit*ch], -n)
+}
+
+// extendRight fills pad (the frames after the signal) from the last
+// frames of the signal, oldest first.
+func (z *zeroPhase) extendRight(pad, tail []float64, rep *EdgeReport) error {
+	ch := z.ch
+	n := len(pad) / ch
+	m := len(tail) / ch
+	if z.opt.Extension == ExtendOdd {
+		// pad[j] = 2*x[N-1] - x[N-2-j]
+		for j := 0; j < n; j++ {
+			for k := 0; k < ch; k++ {
+				pad[j*ch+k] = 2*tail[(m-1)*ch+k] - tail[(m-2-j)*ch+k]
+			}
+		}
+		return nil
+	}
+	fit := min(z.opt.FitFrames, m)
+	rep.FitFrames = min(rep.FitFrames, fit)
+	return z.extrapolate(pad, tail[(m-fit)*ch:], fit)
+}
+
+// extrapolate fits x[t] = c + sum_k (a_k cos(w_k t) + b_k sin(w_k t)),
+// t = 0..len(x)/ch-1, per channel by least squares (QR), and writes the
+// model at t = from, from+1, ... into pad.
+func (z *zeroPhase) extrapolate(pad, x []float64, from int) error {
+	ch := z.ch
+	m := len(x) / ch
+	p := 1 + 2*len(z.omega)
+	if m < p {
+		return fmt.Errorf("process: tone extension: the signal has %d frames, the fit of %d tones needs %d", m, len(z.omega), p)
+	}
+	row := func(dst []float64, t float64) {
+		dst[0] = 1
+		for k, w := range z.omega {
+			s, c := math.Sincos(w * t)
+			dst[1+2*k], dst[2+2*k] = c, s
+		}
+	}
+	a := mat.NewDense(m, p, nil)
+	for t := 0; t < m; t++ {
+		row(a.RawRowView(t), float64(t))
+	}
+	b := mat.NewDense(m, ch, append([]float64(nil), x...))
+	var qr mat.QR
+	qr.Factorize(a)
+	var coef mat.Dense
+	if err := qr.SolveTo(&coef, false, b); err != nil {
+		return fmt.Errorf("process: tone extension: the fit is ill-conditioned (tones too close for %d frames?): %w", m, err)
+	}
+	r := make([]float64, p)
+	for j := 0; j < len(pad)/ch; j++ {
+		row(r, float64(from+j))
+		for k := 0; k < ch; k++ {
+			v := 0.0
+			for i, ri := range r {
+				v += ri * coef.At(i, k)
+			}
+			pad[j*ch+k] = v
+		}
+	}
+	return nil
+}
+
+// readFull reads whole frames into dst until it is full or the source
+// ends. eof reports the end of the source.
+func readFull(src FrameSource, dst []float64, ch int) (frames int, eof bool, err error) {
+	want := len(dst) / ch
+	for frames < want {
+		n, err := src.ReadFrames(dst[frames*ch:])
+		if n < 0 || n > want-frames {
+			return frames, false, fmt.Errorf("process: frame source returned %d frames for room of %d", n, want-frames)
+		}
+		frames += n
+		if err == io.EOF {
+			return frames, true, nil
+		}
+		if err != nil {
+			return frames, false, fmt.Errorf("process: reading frames: %w", err)
+		}
+		if n == 0 {
+			return frames, false, fmt.Errorf("process: reading frames: %w", io.ErrNoProgress)
+		}
+	}
+	return frames, false, nil
+}
+
+func reverseFrames(x []float64, ch int) {
+	for i, j := 0, len(x)-ch; i < j; i, j = i+ch, j-ch {
+		for k := 0; k < ch; k++ {
+			x[i+k], x[j+k] = x[j+k], x[i+k]
+		}
+	}
+}
+
+// ring keeps the last n frames pushed.
+type ring struct {
+	buf      []float64
+	ch, next int
+	full     bool
+}
+
+func newRing(n, ch int) *ring { return &ring{buf: make([]float64, n*ch), ch: ch} }
+
+func (r *ring) push(p []float64) {
+	if len(r.buf) == 0 {
+		return
+	}
+	if len(p) >= len(r.buf) {
+		copy(r.buf, p[len(p)-len(r.buf):])
+		r.next, r.full = 0, true
+		return
+	}
+	n := copy(r.buf[r.next:], p)
+	if n < len(p) {
+		copy(r.buf, p[n:])
+		r.full = true
+	}
+	r.next = (r.next + len(p)) % len(r.buf)
+	if r.next == 0 {
+		r.full = true
+	}
+}
+
+// frames returns the kept frames, oldest first.
+func (r *ring) frames() []float64 {
+	if !r.full {
+		return r.buf[:r.next]
+	}
+	out := make([]float64, 0, len(r.buf))
+	return append(append(out, r.buf[r.next:]...), r.buf[:r.next]...)
+}
+
+// store holds the signal between the passes; positions are sample
+// indices.
+type store interface {
+	write(p []float64, at int) error
+	read(p []float64, at int) error
+}
+
+type memStore []float64
+
+func (m memStore) write(p []float64, at int) error { copy(m[at:], p); return nil }
+func (m memStore) read(p []float64, at int) error  { copy(p, m[at:]); return nil }
+
+// spillStore keeps the first memLimit samples in memory, in chunks
+// allocated as they are reached, and the rest in a file (lazily
+// created). The file holds raw float64 in the machine's byte order: it
+// is private to this process and removed after the run.
+type spillStore struct {
+	dir      string
+	f        *os.File
+	chunks   [][]float64
+	memLimit int // a multiple of spillChunk
+}
+
+const spillChunk = 1 << 20 // samples
+
+func (s *spillStore) close() {
+	if s.f != nil {
+		s.f.Close()
+		os.Remove(s.f.Name())
+	}
+}
+
+func (s *spillStore) write(p []float64, at int) error {
+	for len(p) > 0 && at < s.memLimit {
+		k := at / spillChunk
+		for len(s.chunks) <= k {
+			s.chunks = append(s.chunks, make([]float64, spillChunk))
+		}
+		n := copy(s.chunks[k][at%spillChunk:], p)
+		p, at = p[n:], at+n
+	}
+	if len(p) == 0 {
+		return nil
+	}
+	if s.f == nil {
+		f, err := os.CreateTemp(s.dir, "wavsieve-spill-*.f64")
+		if err != nil {
+			return fmt.Errorf("process: zero-phase spill: %w", err)
+		}
+		s.f = f
+	}
+	if _, err := s.f.WriteAt(asBytes(p), 8*int64(at-s.memLimit)); err != nil {
+		return fmt.Errorf("process: zero-phase spill: %w", err)
+	}
+	return nil
+}
+
+func (s *spillStore) read(p []float64, at int) error {
+	for len(p) > 0 && at < s.memLimit {
+		n := copy(p, s.chunks[at/spillChunk][at%spillChunk:])
+		p, at = p[n:], at+n
+	}
+	if len(p) == 0 {
+		return nil
+	}
+	if _, err := s.f.ReadAt(asBytes(p), 8*int64(at-s.memLimit)); err != nil {
+		if err == io.EOF {
+			err = io.ErrUnexpectedEOF
+		}
+		return fmt.Errorf("process: zero-phase spill: %w", err)
+	}
+	return nil
+}
+
+// asBytes views float64 samples as their bytes, without copying.
+func asBytes(p []float64) []byte {
+	return unsafe.Slice((*byte)(unsafe.Pointer(unsafe.SliceData(p))), 8*len(p))
+}
+
+// sliceSource reads frames from a slice.
+type sliceSource struct {
+	x  []float64
+	ch int
+}
+
+func (s *sliceSource) ReadFrames(dst []float64) (int, error) {
+	n := copy(dst[:len(dst)/s.ch*s.ch], s.x)
+	s.x = s.x[n:]
+	if len(s.x) == 0 {
+		return n / s.ch, io.EOF
+	}
+	return n / s.ch, nil
+}
