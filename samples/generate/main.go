@@ -2,7 +2,9 @@
 // recordings from Reedmere marsh, an invented wetland monitoring station,
 // and from an invented pump test rig. Every signal is computed here from
 // fixed parameters and fixed seeds, so running it again gives the same
-// bytes. Run it from the repository root:
+// bytes on the same kind of machine (the committed files come from amd64;
+// another architecture may round the last bits of the float arithmetic
+// differently). Run it from the repository root:
 //
 //	go run ./samples/generate
 //

@@ -5,11 +5,15 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"runtime"
 	"testing"
 )
 
 // TestDeterministic generates the demo files twice and checks that the
-// bytes are the same, and the same as the committed files.
+// bytes are the same, and on amd64, where the committed files were
+// generated, the same as those. Elsewhere the last bits of the float
+// arithmetic may differ (fused multiply-add, other math routines), so the
+// committed bytes are not expected there.
 func TestDeterministic(t *testing.T) {
 	if testing.Short() {
 		t.Skip("writes about 5 MB twice")
@@ -30,6 +34,9 @@ func TestDeterministic(t *testing.T) {
 		y, _ := os.ReadFile(filepath.Join(b, base))
 		if !bytes.Equal(x, y) {
 			t.Errorf("%s: two runs differ", base)
+		}
+		if runtime.GOARCH != "amd64" {
+			continue
 		}
 		committed, err := os.ReadFile(filepath.Join("..", base))
 		if err != nil {
