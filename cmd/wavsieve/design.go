@@ -200,6 +200,9 @@ func writeFileAtomic(name string, data []byte) error {
 	}
 	_, werr := tmp.Write(data)
 	if werr == nil {
+		werr = tmp.Chmod(0o644)
+	}
+	if werr == nil {
 		werr = tmp.Sync()
 	}
 	cerr := tmp.Close()

@@ -33,6 +33,7 @@ type command struct {
 func commands() []command {
 	return []command{
 		{"design", "design a filter from a spec at a sample rate and report or plot it", runDesign},
+		{"apply", "filter WAV files and folders, each at its own sample rate", runApply},
 	}
 }
 

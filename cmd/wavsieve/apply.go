@@ -1,0 +1,402 @@
+package main
+
+import (
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"syscall"
+
+	"github.com/spf13/pflag"
+	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/wavio"
+)
+
+const applyHelp = `Filter WAV files and folders, each designed at its own sample rate.
+
+Usage:
+  wavsieve apply (--spec <file> | --family <name> ...) --output <dir|file> [flags] <input>...
+
+Inputs are WAV files, folders (with --recursive, their sub-folders too) and
+glob patterns. The outputs mirror the input tree under the --output folder;
+for a single input file --output may name the output file instead. Inputs
+are never modified, outputs are written to a temporary file and renamed into
+place when complete, and an output that already exists complete is skipped
+unless --replace is given. A file whose rate cannot take the spec (an edge
+at or above its Nyquist frequency) fails alone; the others go on.
+
+With --zero-phase the filter runs forward, then backward over a temporary
+spill file beside the output (or in --temp-dir), so files larger than memory
+work; the ends are padded for as long as the filter takes to ring down, by
+odd reflection, or for hum notches by the fitted hum itself.
+
+A manifest of the run (JSON and CSV) is written to the output folder, or
+where --manifest says; --json prints the JSON manifest on stdout.
+
+--shard K/N keeps every N-th input of the sorted list, starting with the
+K-th, so that N machines given the same command share an archive: in a
+Slurm array, --shard $((SLURM_ARRAY_TASK_ID+1))/$SLURM_ARRAY_TASK_COUNT;
+in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N.
+
+Exit codes: 0 every file done or skipped, 1 some failed, 2 usage error.
+
+Examples:
+  # take rumble and hum out of a folder of field recordings
+  wavsieve apply --spec samples/specs/rumble-and-hum.json --output out/clean samples
+
+  # one file, zero-phase low-pass, written as 32-bit float
+  wavsieve apply --family elliptic --response lowpass --passband 2000 --stopband 2500 \
+      --ripple 0.1 --attenuation 80 --zero-phase --sample-format float32 \
+      --output out/logger-lp.wav logger.wav
+
+  # see what would be designed for each file, writing nothing
+  wavsieve apply --spec hum.json --output out --recursive --dry-run archive/
+
+Flags:
+`
+
+type applyOpts struct {
+	sf         specFlags
+	output     string
+	recursive  bool
+	replace    bool
+	workers    int
+	shard      string
+	dryRun     bool
+	asJSON     bool
+	manifest   string
+	sampleFmt  string
+	noDither   bool
+	seed       uint64
+	channels   string
+	steady     bool
+	tempDir    string
+	nonFinite  bool
+	noProgress bool
+}
+
+func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	fs := pflag.NewFlagSet("apply", pflag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	var o applyOpts
+	o.sf.register(fs)
+	fs.StringVarP(&o.output, "output", "o", "", "output `folder` (or file, for one input)")
+	fs.BoolVarP(&o.recursive, "recursive", "r", false, "descend into sub-folders of folder inputs")
+	fs.BoolVar(&o.replace, "replace", false, "redo outputs that already exist complete")
+	fs.IntVarP(&o.workers, "workers", "j", runtime.NumCPU(), "files filtered at once")
+	fs.StringVar(&o.shard, "shard", "", "process only share `K/N` of the inputs (see above)")
+	fs.BoolVarP(&o.dryRun, "dry-run", "n", false, "print the design for every file and write nothing")
+	fs.BoolVar(&o.asJSON, "json", false, "print the run manifest as JSON on stdout")
+	fs.StringVar(&o.manifest, "manifest", "", "write the manifest to `base`.json and base.csv (default: in the output folder)")
+	fs.StringVar(&o.sampleFmt, "sample-format", "", "output samples: pcm16, pcm24, pcm32, float32 or float64 (default: the input's)")
+	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
+	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the clock; recorded in the manifest)")
+	fs.StringVar(&o.channels, "channels", "", "filter only these channels, counted from 1 (`list` such as 1,3); others pass through")
+	fs.BoolVar(&o.steady, "steady-start", false, "causal runs start settled on the first sample, so a DC offset gives no thump")
+	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")
+	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "let NaN and infinite float samples through instead of refusing the file")
+	fs.BoolVar(&o.noProgress, "no-progress", false, "no progress display on a terminal")
+	help := fs.BoolP("help", "h", false, "show this help")
+	if err := fs.Parse(args); err != nil {
+		return report(stderr, "apply", usagef("%v", err), "")
+	}
+	if *help {
+		fmt.Fprint(stdout, applyHelp)
+		fmt.Fprint(stdout, fs.FlagUsages())
+		return exitOK
+	}
+	spec, err := o.sf.spec(fs)
+	if err != nil {
+		return report(stderr, "apply", err, "")
+	}
+	if fs.NArg() == 0 {
+		return report(stderr, "apply", usagef("no input files or folders given"), "")
+	}
+	if o.output == "" {
+		return report(stderr, "apply", usagef("no --output folder or file given"), "")
+	}
+	popt := process.PlanOptions{Recursive: o.recursive, Replace: o.replace}
+	if o.shard != "" {
+		k, n, ok := parseShard(o.shard)
+		if !ok {
+			return report(stderr, "apply", usagef("--shard %q: use K/N with 1 <= K <= N, for example 2/8", o.shard), "")
+		}
+		popt.Shard, popt.Shards = k, n
+	}
+	if o.workers < 1 {
+		return report(stderr, "apply", usagef("--workers must be at least 1"), "")
+	}
+	tmpl := process.FileJob{Spec: spec, NoDither: o.noDither, DitherSeed: o.seed, SteadyStart: o.steady, TempDir: o.tempDir, AllowNonFinite: o.nonFinite}
+	if o.sampleFmt != "" {
+		enc, bits, ok := parseSampleFormat(o.sampleFmt)
+		if !ok {
+			return report(stderr, "apply", usagef("--sample-format %q: use pcm16, pcm24, pcm32, float32 or float64", o.sampleFmt), "")
+		}
+		tmpl.Encoding, tmpl.Bits = enc, bits
+	}
+	if o.channels != "" {
+		only, err := parseChannels(o.channels)
+		if err != nil {
+			return report(stderr, "apply", err, "")
+		}
+		tmpl.Only = only
+	}
+	// One input file and an --output that is not a folder: the output file.
+	if fs.NArg() == 1 && isWAVFile(fs.Arg(0)) && !isDir(o.output) && strings.EqualFold(filepath.Ext(o.output), ".wav") {
+		popt.OutputFile = o.output
+	} else {
+		popt.OutputDir = o.output
+	}
+	items, err := process.Plan(fs.Args(), popt)
+	if err != nil {
+		return report(stderr, "apply", err, "")
+	}
+	if o.dryRun {
+		return dryRun(items, tmpl, o.asJSON, stdout, stderr)
+	}
+
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	prog := newProgress(stderr, items, !o.noProgress)
+	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
+	prog.finish()
+
+	m := manifest{Files: results, Spec: spec, Workers: o.workers, Shard: o.shard}
+	base := o.manifest
+	if base == "" {
+		dir := popt.OutputDir
+		if dir == "" {
+			dir = filepath.Dir(popt.OutputFile)
+		}
+		base = filepath.Join(dir, "wavsieve-manifest")
+	}
+	if err := m.write(base); err != nil {
+		fmt.Fprintf(stderr, "wavsieve apply: writing the manifest: %v\n", err)
+	}
+	if o.asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", " ")
+		enc.Encode(m)
+	}
+	failed, done, skipped := 0, 0, 0
+	for _, r := range results {
+		switch r.Status {
+		case process.StatusFailed:
+			failed++
+			fmt.Fprintf(stderr, "wavsieve apply: %s\n", r.Error)
+		case process.StatusDone:
+			done++
+			if n := sum(r.Clipped); n > 0 {
+				fmt.Fprintf(stderr, "wavsieve apply: warning: %s: %d samples clipped at full scale; lower the level or write float32\n", r.Output, n)
+			}
+		default:
+			skipped++
+		}
+	}
+	fmt.Fprintf(stderr, "wavsieve apply: %d done, %d skipped, %d failed; manifest %s.json\n", done, skipped, failed, base)
+	if ctx.Err() != nil {
+		fmt.Fprintln(stderr, "wavsieve apply: interrupted; no partial outputs were left")
+		return exitFail
+	}
+	if failed > 0 {
+		return exitFail
+	}
+	return exitOK
+}
+
+func sum(v []int64) int64 {
+	var s int64
+	for _, x := range v {
+		s += x
+	}
+	return s
+}
+
+func parseShard(s string) (int, int, bool) {
+	a, b, ok := strings.Cut(s, "/")
+	if !ok {
+		return 0, 0, false
+	}
+	k, err1 := strconv.Atoi(a)
+	n, err2 := strconv.Atoi(b)
+	if err1 != nil || err2 != nil || n < 1 || k < 1 || k > n {
+		return 0, 0, false
+	}
+	return k, n, true
+}
+
+func parseSampleFormat(s string) (wavio.Encoding, int, bool) {
+	switch strings.ToLower(s) {
+	case "pcm16":
+		return wavio.PCM, 16, true
+	case "pcm24":
+		return wavio.PCM, 24, true
+	case "pcm32":
+		return wavio.PCM, 32, true
+	case "float32":
+		return wavio.Float, 32, true
+	case "float64":
+		return wavio.Float, 64, true
+	}
+	return 0, 0, false
+}
+
+func parseChannels(s string) ([]int, error) {
+	var out []int
+	for _, p := range strings.Split(s, ",") {
+		n, err := strconv.Atoi(strings.TrimSpace(p))
+		if err != nil || n < 1 {
+			return nil, usagef("--channels %q: give channel numbers from 1, separated by commas", s)
+		}
+		out = append(out, n-1)
+	}
+	return out, nil
+}
+
+func isDir(p string) bool {
+	st, err := os.Stat(p)
+	return err == nil && st.IsDir()
+}
+
+func isWAVFile(p string) bool {
+	st, err := os.Stat(p)
+	return err == nil && !st.IsDir()
+}
+
+// dryRun designs the spec at every input's rate and prints what would be
+// done; nothing is written.
+func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, stderr io.Writer) int {
+	var files []process.FileResult
+	failed := 0
+	for _, it := range items {
+		r := process.FileResult{Input: it.Input, Output: it.Output, Status: process.StatusSkipped, Error: "dry run"}
+		if it.Skip != "" {
+			r.Error = it.Skip
+		}
+		rd, err := wavio.Open(it.Input, nil)
+		if err != nil {
+			r.Status, r.Error = process.StatusFailed, fmt.Sprintf("%s: %v", it.Input, err)
+			failed++
+			files = append(files, r)
+			continue
+		}
+		f := rd.Format()
+		r.SampleRate, r.Channels, r.Frames, r.Format = f.SampleRate, f.Channels, rd.Frames(), f.String()
+		r.DurationS = float64(r.Frames) / float64(f.SampleRate)
+		rd.Close()
+		filt, err := process.DesignFor(tmpl.Spec, f.SampleRate, it.Input)
+		if err != nil {
+			r.Status, r.Error = process.StatusFailed, err.Error()
+			failed++
+		} else {
+			for _, st := range filt.Stages {
+				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+			}
+		}
+		files = append(files, r)
+	}
+	if asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", " ")
+		enc.Encode(manifest{Files: files, Spec: tmpl.Spec, DryRun: true})
+	} else {
+		for _, r := range files {
+			fmt.Fprintf(stdout, "%s -> %s\n", r.Input, r.Output)
+			if r.Status == process.StatusFailed {
+				fmt.Fprintf(stdout, "  would fail: %s\n", r.Error)
+				continue
+			}
+			fmt.Fprintf(stdout, "  %d Hz, %d channels, %.3f s, %s\n", r.SampleRate, r.Channels, r.DurationS, r.Format)
+			for _, s := range r.Design {
+				fmt.Fprintf(stdout, "  %s\n", stageLine(s))
+			}
+			if r.Error != "dry run" {
+				fmt.Fprintf(stdout, "  would be skipped: %s\n", r.Error)
+			}
+		}
+	}
+	if failed > 0 {
+		return exitFail
+	}
+	return exitOK
+}
+
+func stageLine(s process.StageSummary) string {
+	what := s.Family
+	if s.Response != "" {
+		what += " " + s.Response
+	}
+	var e []string
+	for _, hz := range s.EdgesHz {
+		e = append(e, fmtHz(hz))
+	}
+	edges := strings.Join(e, ", ")
+	if len(e) > 6 {
+		edges = strings.Join(e[:6], ", ") + fmt.Sprintf(", ... (%d)", len(e))
+	}
+	return fmt.Sprintf("%s, order %d, %d sections, at %s Hz", what, s.Order, s.Sections, edges)
+}
+
+// manifest is the record of a run.
+type manifest struct {
+	Files   []process.FileResult `json:"files"`
+	Spec    any                  `json:"spec"`
+	Workers int                  `json:"workers,omitempty"`
+	Shard   string               `json:"shard,omitempty"`
+	DryRun  bool                 `json:"dry_run,omitempty"`
+}
+
+var csvHeader = []string{"input", "output", "status", "error", "sample_rate_hz", "channels", "frames", "duration_s", "format", "output_format", "zero_phase", "design", "peak_in_dbfs", "peak_out_dbfs", "clipped_samples", "dither_seed", "seconds"}
+
+// write saves the manifest as base.json and base.csv, each atomically.
+func (m manifest) write(base string) error {
+	j, err := json.MarshalIndent(m, "", " ")
+	if err != nil {
+		return err
+	}
+	if err := writeFileAtomic(base+".json", append(j, '\n')); err != nil {
+		return err
+	}
+	var b strings.Builder
+	w := csv.NewWriter(&b)
+	w.Write(csvHeader)
+	for _, r := range m.Files {
+		var d []string
+		for _, s := range r.Design {
+			d = append(d, stageLine(s))
+		}
+		w.Write([]string{
+			r.Input, r.Output, r.Status, r.Error, strconv.Itoa(r.SampleRate), strconv.Itoa(r.Channels),
+			strconv.FormatInt(r.Frames, 10), fmt.Sprintf("%.6f", r.DurationS), r.Format, r.OutFormat,
+			strconv.FormatBool(r.ZeroPhase), strings.Join(d, "; "), joinFloats(r.PeakInDBFS), joinFloats(r.PeakOutDBFS),
+			joinInts(r.Clipped), strconv.FormatUint(r.DitherSeed, 10), fmt.Sprintf("%.3f", r.Seconds),
+		})
+	}
+	w.Flush()
+	return writeFileAtomic(base+".csv", []byte(b.String()))
+}
+
+func joinFloats(v []float64) string {
+	s := make([]string, len(v))
+	for i, x := range v {
+		s[i] = strconv.FormatFloat(x, 'f', 2, 64)
+	}
+	return strings.Join(s, " ")
+}
+
+func joinInts(v []int64) string {
+	s := make([]string, len(v))
+	for i, x := range v {
+		s[i] = strconv.FormatInt(x, 10)
+	}
+	return strings.Join(s, " ")
+}
+
+func openWAV(name string) (*wavio.Reader, error) { return wavio.Open(name, nil) }

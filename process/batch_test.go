@@ -1,0 +1,324 @@
+package process
+
+import (
+	"bytes"
+	"context"
+	"crypto/sha256"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+
+	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process/wavio"
+)
+
+// writeTone writes a test file: a 50 Hz hum of amplitude 0.1 plus a
+// 1 kHz tone of amplitude 0.2 on every channel, seconds long.
+func writeTone(t *testing.T, name string, rate, ch int, seconds float64, f wavio.Format, chunks []wavio.Chunk) {
+	t.Helper()
+	f.SampleRate, f.Channels = rate, ch
+	w, err := wavio.Create(name, wavio.WriterOptions{Format: f, NoDither: true, Chunks: chunks})
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := int(seconds * float64(rate))
+	buf := make([]float64, n*ch)
+	for i := 0; i < n; i++ {
+		tt := float64(i) / float64(rate)
+		v := 0.1*math.Sin(2*math.Pi*50*tt) + 0.2*math.Sin(2*math.Pi*1000*tt)
+		for c := 0; c < ch; c++ {
+			buf[i*ch+c] = v
+		}
+	}
+	if err := w.WriteFrames(buf); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+var f64 = wavio.Format{Bits: 64, Encoding: wavio.Float}
+
+func readAll(t *testing.T, name string) ([]float64, wavio.Format, []wavio.Chunk) {
+	t.Helper()
+	r, err := wavio.Open(name, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	out := make([]float64, int(r.Frames())*r.Format().Channels)
+	got := 0
+	for got < len(out) {
+		n, err := r.ReadFrames(out[got:])
+		got += n * r.Format().Channels
+		if err != nil {
+			break
+		}
+	}
+	return out[:got], r.Format(), r.Chunks()
+}
+
+func hashFile(t *testing.T, name string) [32]byte {
+	b, err := os.ReadFile(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return sha256.Sum256(b)
+}
+
+var humSpec = design.Spec{Stages: []design.Stage{{Family: design.Notch, FundamentalHz: 50, BandwidthHz: 2, Harmonics: 3}}}
+
+func TestFilterFileMatchesCascade(t *testing.T) {
+	// The file path is the engine plus I/O: the output equals running the
+	// cascade of the design at the file's rate over the same samples.
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	writeTone(t, in, 44100, 2, 1, f64, nil)
+	before := hashFile(t, in)
+	out := filepath.Join(dir, "out.wav")
+	res, err := FilterFile(context.Background(), FileJob{Input: in, Output: out, Spec: humSpec, BlockFrames: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if hashFile(t, in) != before {
+		t.Fatal("input modified")
+	}
+	if res.Status != StatusDone || res.SampleRate != 44100 || res.Channels != 2 || res.Frames != 44100 {
+		t.Errorf("result %+v", res)
+	}
+	x, _, _ := readAll(t, in)
+	y, _, _ := readAll(t, out)
+	f, _ := design.Design(humSpec, 44100)
+	c, _ := NewCascade(f.Sections(), Config{Channels: 2})
+	want := c.Process(nil, x)
+	for i := range want {
+		if want[i] != y[i] {
+			t.Fatalf("sample %d: file %v, cascade %v", i, y[i], want[i])
+		}
+	}
+}
+
+func TestFilterFileEachAtItsRate(t *testing.T) {
+	// The same spec removes 50 Hz and keeps 1 kHz at every rate: measured
+	// by correlating the last half second with each tone.
+	dir := t.TempDir()
+	for _, rate := range []int{8000, 44100, 96000, 37800} {
+		in := filepath.Join(dir, "in.wav")
+		out := filepath.Join(dir, "out.wav")
+		writeTone(t, in, rate, 1, 2, f64, nil)
+		spec := humSpec
+		spec.ZeroPhase = true
+		if _, err := FilterFile(context.Background(), FileJob{Input: in, Output: out, Spec: spec}); err != nil {
+			t.Fatal(err)
+		}
+		y, _, _ := readAll(t, out)
+		a50 := toneAmp(y, rate, 50)
+		a1k := toneAmp(y, rate, 1000)
+		// Zero-phase notch with fitted-hum ends: 50 Hz gone everywhere, 1 kHz untouched (1 kHz is 950 Hz from the 1 Hz-wide notch).
+		if a50 > 1e-3 || math.Abs(a1k-0.2) > 2e-3 {
+			t.Errorf("%d Hz: 50 Hz amplitude %.2g (want < 1e-3), 1 kHz %.4f (want 0.2)", rate, a50, a1k)
+		}
+		os.Remove(out)
+	}
+}
+
+// toneAmp is the amplitude of the tone at hz by least-squares projection
+// over the whole signal (an integer number of cycles for the rates used).
+func toneAmp(x []float64, rate int, hz float64) float64 {
+	var s, c float64
+	for i, v := range x {
+		ph := 2 * math.Pi * hz * float64(i) / float64(rate)
+		s += v * math.Sin(ph)
+		c += v * math.Cos(ph)
+	}
+	return 2 * math.Hypot(s, c) / float64(len(x))
+}
+
+func TestFilterFileKeepsChunksAndAppendsHistory(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	bext := make([]byte, 602)
+	copy(bext, "field recording")
+	bext = append(bext, []byte("A=PCM,F=48000,W=24,M=mono,T=recorder\r\n")...)
+	ixml := []byte("<BWFXML><PROJECT>test</PROJECT></BWFXML>")
+	writeTone(t, in, 48000, 1, 0.2, wavio.Format{Bits: 24, Encoding: wavio.PCM}, []wavio.Chunk{{ID: "bext", Data: bext}, {ID: "iXML", Data: ixml}})
+	out := filepath.Join(dir, "out.wav")
+	if _, err := FilterFile(context.Background(), FileJob{Input: in, Output: out, Spec: humSpec, DitherSeed: 5}); err != nil {
+		t.Fatal(err)
+	}
+	_, f, chunks := readAll(t, out)
+	if f.Bits != 24 || f.Encoding != wavio.PCM {
+		t.Errorf("output format %v, want the input's", f)
+	}
+	if len(chunks) != 2 || chunks[0].ID != "bext" || chunks[1].ID != "iXML" || !bytes.Equal(chunks[1].Data, ixml) {
+		t.Fatalf("chunks %v", chunks)
+	}
+	hist := string(chunks[0].Data[602:])
+	if !strings.HasPrefix(hist, "A=PCM,F=48000,W=24,M=mono,T=recorder\r\n") || !strings.Contains(hist, "T=wavsieve filter causal: notch") {
+		t.Errorf("coding history %q", hist)
+	}
+}
+
+func TestFilterFileFailuresLeaveNothing(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	writeTone(t, in, 8000, 1, 0.5, f64, nil)
+	outDir := filepath.Join(dir, "out")
+	os.Mkdir(outDir, 0o755)
+	out := filepath.Join(outDir, "o.wav")
+	// An edge above this file's Nyquist frequency.
+	bad := design.Spec{Stages: []design.Stage{{Family: design.Butterworth, Response: design.Lowpass, Order: 2, CutoffHz: design.Edges{5000}}}}
+	res, err := FilterFile(context.Background(), FileJob{Input: in, Output: out, Spec: bad})
+	if err == nil || res.Status != StatusFailed || !strings.Contains(err.Error(), in) || !strings.Contains(err.Error(), "Nyquist") {
+		t.Errorf("error %v, status %s", err, res.Status)
+	}
+	// Cancelled before the first block.
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	for _, zp := range []bool{false, true} {
+		s := humSpec
+		s.ZeroPhase = zp
+		if _, err := FilterFile(ctx, FileJob{Input: in, Output: out, Spec: s}); err == nil {
+			t.Errorf("zero-phase=%v: no error after cancel", zp)
+		}
+	}
+	// The input as its own output.
+	if _, err := FilterFile(context.Background(), FileJob{Input: in, Output: in, Spec: humSpec}); err == nil {
+		t.Error("input overwritten")
+	}
+	entries, _ := os.ReadDir(outDir)
+	if len(entries) != 0 {
+		t.Errorf("left behind: %v", entries)
+	}
+}
+
+func TestPlan(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in")
+	for _, p := range []string{"a.wav", "b.WAV", "notes.txt", "sub/c.wav", "sub/deeper/d.wav"} {
+		os.MkdirAll(filepath.Dir(filepath.Join(in, p)), 0o755)
+		if strings.HasSuffix(strings.ToLower(p), ".wav") {
+			writeTone(t, filepath.Join(in, p), 8000, 1, 0.05, f64, nil)
+		} else {
+			os.WriteFile(filepath.Join(in, p), []byte("x"), 0o644)
+		}
+	}
+	out := filepath.Join(dir, "out")
+	outs := func(items []Item) []string {
+		var s []string
+		for _, it := range items {
+			r, _ := filepath.Rel(out, it.Output)
+			s = append(s, r)
+		}
+		sort.Strings(s)
+		return s
+	}
+	items, err := Plan([]string{in}, PlanOptions{OutputDir: out})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(outs(items), " "); got != "a.wav b.WAV" {
+		t.Errorf("flat: %s", got)
+	}
+	items, _ = Plan([]string{in}, PlanOptions{OutputDir: out, Recursive: true})
+	if got := strings.Join(outs(items), " "); got != "a.wav b.WAV sub/c.wav sub/deeper/d.wav" {
+		t.Errorf("recursive: %s", got)
+	}
+	items, _ = Plan([]string{filepath.Join(in, "*.wav"), filepath.Join(in, "sub", "c.wav")}, PlanOptions{OutputDir: out})
+	if got := strings.Join(outs(items), " "); got != "a.wav c.wav" {
+		t.Errorf("glob: %s", got)
+	}
+	// Shards: disjoint, and together everything, whatever N.
+	all, _ := Plan([]string{in}, PlanOptions{OutputDir: out, Recursive: true})
+	for n := 1; n <= 5; n++ {
+		seen := map[string]int{}
+		for k := 1; k <= n; k++ {
+			part, err := Plan([]string{in}, PlanOptions{OutputDir: out, Recursive: true, Shard: k, Shards: n})
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, it := range part {
+				seen[it.Input]++
+			}
+		}
+		if len(seen) != len(all) {
+			t.Errorf("%d shards cover %d of %d", n, len(seen), len(all))
+		}
+		for k, v := range seen {
+			if v != 1 {
+				t.Errorf("%d shards: %s in %d shards", n, k, v)
+			}
+		}
+	}
+	if _, err := Plan([]string{in}, PlanOptions{OutputDir: out, Shard: 3, Shards: 2}); err == nil {
+		t.Error("shard 3 of 2 accepted")
+	}
+	// Output folder = input folder: refused.
+	if _, err := Plan([]string{in}, PlanOptions{OutputDir: in}); err == nil || !strings.Contains(err.Error(), "overwrite an input") {
+		t.Errorf("in-place run: %v", err)
+	}
+	// Two inputs to one output.
+	if _, err := Plan([]string{filepath.Join(in, "sub", "c.wav"), filepath.Join(in, "sub", "deeper", "d.wav"), filepath.Join(in, "sub", "c.wav")}, PlanOptions{OutputDir: out}); err == nil {
+		t.Error("duplicate output accepted")
+	}
+	// A complete output is skipped, a broken one is redone, --replace redoes all.
+	os.MkdirAll(out, 0o755)
+	writeTone(t, filepath.Join(out, "a.wav"), 8000, 1, 0.05, f64, nil)
+	os.WriteFile(filepath.Join(out, "b.WAV"), []byte("RIFF...."), 0o644)
+	items, _ = Plan([]string{in}, PlanOptions{OutputDir: out})
+	if items[0].Skip == "" || items[1].Skip != "" {
+		t.Errorf("skip: %+v", items)
+	}
+	items, _ = Plan([]string{in}, PlanOptions{OutputDir: out, Replace: true})
+	if items[0].Skip != "" {
+		t.Errorf("replace: %+v", items)
+	}
+}
+
+func TestRunWorkersSameOutput(t *testing.T) {
+	// Worker count never changes the output bytes (fixed dither seed), and a
+	// failing file does not stop the others.
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in")
+	os.Mkdir(in, 0o755)
+	for i, rate := range []int{8000, 16000, 44100, 48000, 3000} {
+		writeTone(t, filepath.Join(in, string(rune('a'+i))+".wav"), rate, 2, 0.3, wavio.Format{Bits: 16, Encoding: wavio.PCM}, nil)
+	}
+	// 2 kHz low-pass: impossible at 3000 Hz (Nyquist 1500 Hz) only.
+	spec := design.Spec{Stages: []design.Stage{{Family: design.Elliptic, Response: design.Lowpass, Order: 6, CutoffHz: design.Edges{2000}, RippleDB: 0.5, AttenuationDB: 70}}, ZeroPhase: true}
+	var sums [][]string
+	for _, workers := range []int{1, 3} {
+		out := filepath.Join(dir, "out", string(rune('0'+workers)))
+		items, err := Plan([]string{in}, PlanOptions{OutputDir: out})
+		if err != nil {
+			t.Fatal(err)
+		}
+		res := Run(context.Background(), items, workers, FileJob{Spec: spec, DitherSeed: 99}, Hooks{})
+		var s []string
+		for _, r := range res {
+			if strings.HasSuffix(r.Input, "e.wav") {
+				if r.Status != StatusFailed || !strings.Contains(r.Error, "Nyquist") {
+					t.Errorf("e.wav: %s %s", r.Status, r.Error)
+				}
+				continue
+			}
+			if r.Status != StatusDone {
+				t.Fatalf("%s: %s", r.Input, r.Error)
+			}
+			s = append(s, string(hashFileBytes(t, r.Output)))
+		}
+		sums = append(sums, s)
+	}
+	if len(sums[0]) != 4 || strings.Join(sums[0], "") != strings.Join(sums[1], "") {
+		t.Error("outputs differ between 1 and 3 workers")
+	}
+}
+
+func hashFileBytes(t *testing.T, name string) []byte {
+	h := hashFile(t, name)
+	return h[:]
+}

@@ -1,0 +1,349 @@
+package process
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strings"
+	"time"
+
+	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process/wavio"
+)
+
+// FileJob is one file to filter.
+type FileJob struct {
+	Input  string
+	Output string
+	Spec   design.Spec
+
+	// Encoding and Bits choose the output sample format; zero keeps the input's.
+	Encoding wavio.Encoding
+	Bits     int
+	// NoDither turns off TPDF dither on integer output; DitherSeed fixes
+	// its seed (0: from the clock; the seed used is reported).
+	NoDither   bool
+	DitherSeed uint64
+	// Only lists the channels to filter (from 0); empty means all.
+	Only []int
+	// SteadyStart starts a causal run in the steady state of the first
+	// frame, so a DC offset gives no start-up thump.
+	SteadyStart bool
+	// TempDir holds the zero-phase spill; "" means the output's folder.
+	TempDir string
+	// AllowNonFinite lets NaN and infinite input samples through instead
+	// of refusing the file.
+	AllowNonFinite bool
+	// BlockFrames is the processing block; 0 means 8192.
+	BlockFrames int
+	// Progress, if set, is called after each block with the frames done.
+	Progress func(done, total int64)
+}
+
+// StageSummary is what a manifest records of one designed stage.
+type StageSummary struct {
+	Family   string    `json:"family"`
+	Response string    `json:"response,omitempty"`
+	Order    int       `json:"order"`
+	Sections int       `json:"sections"`
+	EdgesHz  []float64 `json:"edges_hz"`
+}
+
+// FileResult is the outcome of one file.
+type FileResult struct {
+	Input         string         `json:"input"`
+	Output        string         `json:"output"`
+	SampleRate    int            `json:"sample_rate_hz"`
+	Channels      int            `json:"channels"`
+	Frames        int64          `json:"frames"`
+	Format        string         `json:"format"`
+	OutFormat     string         `json:"output_format,omitempty"`
+	DurationS     float64        `json:"duration_s"`
+	ZeroPhase     bool           `json:"zero_phase"`
+	Design        []StageSummary `json:"design,omitempty"`
+	PeakInDBFS    []float64      `json:"peak_in_dbfs,omitempty"`
+	PeakOutDBFS   []float64      `json:"peak_out_dbfs,omitempty"`
+	Clipped       []int64        `json:"clipped_samples,omitempty"`
+	DitherSeed    uint64         `json:"dither_seed,omitempty"`
+	PadFrames     int            `json:"zero_phase_pad_frames,omitempty"`
+	EdgeTransient int            `json:"edge_transient_frames,omitempty"`
+	Warnings      []string       `json:"warnings,omitempty"`
+	Seconds       float64        `json:"seconds"`
+	Status        string         `json:"status"`
+	Error         string         `json:"error"`
+}
+
+// Statuses of a FileResult.
+const (
+	StatusDone    = "done"
+	StatusSkipped = "skipped"
+	StatusFailed  = "failed"
+)
+
+// DesignFor designs spec at the sample rate of a file, naming the file
+// in the error.
+func DesignFor(spec design.Spec, rate int, name string) (*design.Filter, error) {
+	f, err := design.Design(spec, float64(rate))
+	if err != nil {
+		return nil, fmt.Errorf("%s: at this file's %d Hz rate: %w", name, rate, err)
+	}
+	return f, nil
+}
+
+// FilterFile designs the spec at the input's sample rate, filters the
+// input and writes the output through a temporary file that is renamed
+// into place only when everything succeeded. The input is never
+// modified. Cancelling ctx stops the run between blocks and removes the
+// temporary file.
+func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
+	start := time.Now()
+	res = FileResult{Input: job.Input, Output: job.Output, ZeroPhase: job.Spec.ZeroPhase, Status: StatusFailed}
+	defer func() {
+		res.Seconds = time.Since(start).Seconds()
+		if err != nil {
+			res.Error = err.Error()
+		} else {
+			res.Status = StatusDone
+		}
+	}()
+	same, serr := wavio.SameFile(job.Input, job.Output)
+	if serr == nil && same {
+		return res, fmt.Errorf("%s: the output is the input file itself; choose another output", job.Input)
+	}
+	r, err := wavio.Open(job.Input, &wavio.ReaderOptions{AllowNonFinite: job.AllowNonFinite})
+	if err != nil {
+		return res, fmt.Errorf("%s: %w", job.Input, err)
+	}
+	defer r.Close()
+	inF := r.Format()
+	res.SampleRate, res.Channels, res.Frames = inF.SampleRate, inF.Channels, r.Frames()
+	res.Format = inF.String()
+	res.DurationS = float64(res.Frames) / float64(inF.SampleRate)
+	for _, w := range r.Warnings() {
+		res.Warnings = append(res.Warnings, w.String())
+	}
+	filt, err := DesignFor(job.Spec, inF.SampleRate, job.Input)
+	if err != nil {
+		return res, err
+	}
+	for _, st := range filt.Stages {
+		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+	}
+	outF := inF
+	if job.Encoding != 0 {
+		outF = inF.WithSample(job.Encoding, job.Bits)
+	}
+	res.OutFormat = outF.String()
+	w, err := wavio.Create(job.Output, wavio.WriterOptions{Format: outF, Chunks: r.Chunks(), NoDither: job.NoDither, DitherSeed: job.DitherSeed})
+	if err != nil {
+		return res, fmt.Errorf("%s: %w", job.Output, err)
+	}
+	committed := false
+	defer func() {
+		if !committed {
+			w.Abort()
+		}
+	}()
+	res.DitherSeed = w.DitherSeed()
+	if hasChunk(r.Chunks(), "bext") {
+		line := wavio.CodingHistoryLine(outF, "wavsieve "+describe(filt))
+		if err := w.AppendCodingHistory(line); err != nil {
+			return res, fmt.Errorf("%s: bext: %w", job.Output, err)
+		}
+	}
+	src := &peakSource{ctx: ctx, r: r, peak: make([]float64, inF.Channels), ch: inF.Channels, total: res.Frames, progress: job.Progress}
+	dst := &peakSink{w: w, peak: make([]float64, inF.Channels), ch: inF.Channels}
+	cfg := Config{Channels: inF.Channels, Only: job.Only, SteadyStart: job.SteadyStart}
+	block := job.BlockFrames
+	if block <= 0 {
+		block = defaultBlockFrames
+	}
+	if job.Spec.ZeroPhase {
+		opt := zeroPhaseOptions(filt, res.Frames, block)
+		opt.TempDir = job.TempDir
+		if opt.TempDir == "" {
+			opt.TempDir = dirOf(job.Output)
+		}
+		rep, zerr := ZeroPhase(dst, src, filt.Sections(), cfg, opt)
+		if zerr != nil {
+			return res, fmt.Errorf("%s: %w", job.Input, firstErr(src.err, zerr))
+		}
+		res.PadFrames, res.EdgeTransient = rep.PadFrames, rep.TransientFrames
+	} else {
+		if err := causal(dst, src, filt.Sections(), cfg, block); err != nil {
+			return res, fmt.Errorf("%s: %w", job.Input, err)
+		}
+	}
+	if n, first := r.NonFinite(); n > 0 {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("%d NaN or infinite input samples let through, the first at frame %d channel %d", n, first.Frame, first.Channel))
+	}
+	res.Clipped = w.Clipped()
+	if err := w.Close(); err != nil {
+		return res, fmt.Errorf("%s: %w", job.Output, err)
+	}
+	committed = true
+	res.PeakInDBFS, res.PeakOutDBFS = dbfs(src.peak), dbfs(dst.peak)
+	return res, nil
+}
+
+// zeroPhaseOptions sizes the padding from the decay of the chain's
+// transients: 80 dB, so that what is left at the ends is below the
+// quantisation of 16-bit audio relative to the signal (common practice
+// is to pad by several time constants). Notch stages extend by their
+// fitted hum instead of by reflection.
+func zeroPhaseOptions(f *design.Filter, frames int64, block int) ZeroPhaseOptions {
+	const decayDB = 80
+	decay := f.DecaySamples(decayDB, 0)
+	opt := ZeroPhaseOptions{PadFrames: decay, DecayFrames: decay, BlockFrames: block, SampleRateHz: f.SampleRate}
+	var tones []float64
+	for _, st := range f.Stages {
+		tones = append(tones, st.NotchHz...)
+	}
+	if len(tones) > 0 {
+		opt.Extension = ExtendTones
+		opt.ToneHz = tones
+		// One second of fit, or what the file has: enough to tell apart
+		// tones 1 Hz apart (common practice: resolution ~ 1 / length).
+		fit := int64(f.SampleRate)
+		if fit > frames/2 {
+			fit = frames / 2
+		}
+		opt.FitFrames = int(fit)
+	}
+	return opt
+}
+
+// causal streams src through the cascade into dst.
+func causal(dst FrameSink, src FrameSource, sos []design.Section, cfg Config, block int) error {
+	c, err := NewCascade(sos, cfg)
+	if err != nil {
+		return err
+	}
+	buf := make([]float64, block*cfg.Channels)
+	for {
+		n, rerr := src.ReadFrames(buf)
+		if n > 0 {
+			p := buf[:n*cfg.Channels]
+			c.Process(p, p)
+			if err := dst.WriteFrames(p); err != nil {
+				return err
+			}
+		}
+		if rerr != nil {
+			if errors.Is(rerr, io.EOF) {
+				return nil
+			}
+			return rerr
+		}
+	}
+}
+
+// peakSource reads from a wavio.Reader, tracks each channel's peak,
+// reports progress and stops when ctx is cancelled.
+type peakSource struct {
+	ctx      context.Context
+	r        *wavio.Reader
+	peak     []float64
+	ch       int
+	done     int64
+	total    int64
+	progress func(done, total int64)
+	err      error
+}
+
+func (p *peakSource) ReadFrames(dst []float64) (int, error) {
+	if err := p.ctx.Err(); err != nil {
+		p.err = err
+		return 0, err
+	}
+	n, err := p.r.ReadFrames(dst)
+	for i, v := range dst[:n*p.ch] {
+		if a := math.Abs(v); a > p.peak[i%p.ch] {
+			p.peak[i%p.ch] = a
+		}
+	}
+	p.done += int64(n)
+	if p.progress != nil {
+		p.progress(p.done, p.total)
+	}
+	if err != nil && !errors.Is(err, io.EOF) {
+		p.err = err
+	}
+	return n, err
+}
+
+type peakSink struct {
+	w    *wavio.Writer
+	peak []float64
+	ch   int
+}
+
+func (p *peakSink) WriteFrames(src []float64) error {
+	for i, v := range src {
+		if a := math.Abs(v); a > p.peak[i%p.ch] {
+			p.peak[i%p.ch] = a
+		}
+	}
+	return p.w.WriteFrames(src)
+}
+
+func dbfs(peak []float64) []float64 {
+	out := make([]float64, len(peak))
+	for i, v := range peak {
+		out[i] = math.Round(20*math.Log10(math.Max(v, 1e-15))*100) / 100
+	}
+	return out
+}
+
+func hasChunk(c []wavio.Chunk, id string) bool {
+	for _, v := range c {
+		if v.ID == id {
+			return true
+		}
+	}
+	return false
+}
+
+// describe is the free text of the CodingHistory line: what was done.
+func describe(f *design.Filter) string {
+	var parts []string
+	for _, st := range f.Stages {
+		s := fmt.Sprintf("%s %s order %d", st.Family, st.Response, st.Order)
+		if st.Family == design.Notch {
+			s = fmt.Sprintf("notch x%d from %g Hz", len(st.NotchHz), st.NotchHz[0])
+		} else {
+			var e []string
+			for _, hz := range st.EdgesHz {
+				e = append(e, fmt.Sprintf("%.6g", hz))
+			}
+			s += " at " + strings.Join(e, "/") + " Hz"
+		}
+		parts = append(parts, s)
+	}
+	mode := "causal"
+	if f.ZeroPhase {
+		mode = "zero-phase"
+	}
+	return "filter " + mode + ": " + strings.Join(parts, "; ")
+}
+
+func firstErr(a, b error) error {
+	if a != nil {
+		return a
+	}
+	return b
+}
+
+func dirOf(name string) string {
+	i := strings.LastIndexAny(name, string(os.PathSeparator)+"/")
+	if i < 0 {
+		return "."
+	}
+	if i == 0 {
+		return "/"
+	}
+	return name[:i]
+}
