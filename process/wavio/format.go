@@ -199,6 +199,9 @@ func checkWritable(f Format) error {
 	default:
 		return UnsupportedError("output " + f.Encoding.String())
 	}
+	if int64(f.SampleRate)*int64(f.BlockAlign()) > 0xFFFFFFFF {
+		return fmt.Errorf("wavio: invalid format: byte rate of %d Hz x %d bytes exceeds 32 bits", f.SampleRate, f.BlockAlign())
+	}
 	if f.BlockAlign() > 0xFFFF {
 		return fmt.Errorf("wavio: invalid format: frame of %d bytes exceeds the 16-bit block align", f.BlockAlign())
 	}

@@ -55,18 +55,17 @@ type Reader struct {
 	done      bool  // the data has been read to its end
 	trailer   bool  // the chunks after the data have been parsed
 
-	ds64Table map[string]uint64
+	ds64Table []ds64Entry
 	chunks    []Chunk
 	warnings  []Warning
 	err       error // sticky
 
-	opts         ReaderOptions
-	raw          []byte
-	nonFinite    int64
-	firstBad     NonFiniteError
-	factFrames   int64 // the fact chunk's sample count, -1 when absent
-	junkSkipped  bool
-	chunksBefore int
+	opts        ReaderOptions
+	raw         []byte
+	nonFinite   int64
+	firstBad    NonFiniteError
+	factFrames  int64 // the fact chunk's sample count, -1 when absent
+	junkSkipped bool
 }
 
 // Open opens the named file and returns a Reader on it. The Reader's Close
@@ -98,7 +97,7 @@ func NewReaderAt(ra io.ReaderAt, size int64, opts *ReaderOptions) (*Reader, erro
 // file that breaks the format gives a FormatError; a valid file with an
 // encoding this package does not decode gives an UnsupportedError.
 func NewReader(r io.Reader, opts *ReaderOptions) (*Reader, error) {
-	rd := &Reader{src: r, fileSize: -1, riffEnd: -1, frames: -1, factFrames: -1}
+	rd := &Reader{src: r, fileSize: -1, riffEnd: -1, frames: -1}
 	if opts != nil {
 		rd.opts = *opts
 	}
@@ -205,6 +204,12 @@ func (r *Reader) discard(n int64) (int64, error) {
 	return done, nil
 }
 
+// ds64Entry is one row of the ds64 table: a chunk ID and its 64-bit size.
+type ds64Entry struct {
+	id   [4]byte
+	size uint64
+}
+
 func isFourCC(b []byte) bool {
 	if len(b) < 4 {
 		return false
@@ -271,9 +276,11 @@ func noEOF(err error) error {
 
 // chunkSize resolves a 32-bit chunk size through the ds64 table of RF64.
 func (r *Reader) chunkSize(id string, size uint32) int64 {
-	if size == 0xFFFFFFFF && r.ds64Table != nil {
-		if s, ok := r.ds64Table[id]; ok {
-			return int64(s)
+	if size == 0xFFFFFFFF {
+		for _, e := range r.ds64Table {
+			if string(e.id[:]) == id {
+				return int64(min(e.size, 1<<62)) // beyond any file
+			}
 		}
 	}
 	return int64(size)
@@ -328,10 +335,14 @@ func (r *Reader) readHeader() error {
 		if count > (n-28)/12 {
 			return FormatError(fmt.Sprintf("ds64 chunk: table of %d entries in %d bytes", count, n))
 		}
-		r.ds64Table = map[string]uint64{}
-		for i := int64(0); i < count; i++ {
+		if ds64Data > 1<<62 {
+			return FormatError(fmt.Sprintf("ds64 chunk: data size %d", ds64Data))
+		}
+		r.ds64Table = make([]ds64Entry, count)
+		for i := range r.ds64Table {
 			e := body[28+12*i : 40+12*i]
-			r.ds64Table[string(e[0:4])] = binary.LittleEndian.Uint64(e[4:12])
+			copy(r.ds64Table[i].id[:], e[0:4])
+			r.ds64Table[i].size = binary.LittleEndian.Uint64(e[4:12])
 		}
 		if n&1 == 1 {
 			if err := r.skipPad("ds64"); err != nil {
@@ -388,12 +399,9 @@ func (r *Reader) readHeader() error {
 			}
 			return r.startData(declared, r.order.Uint32(ch[4:8]))
 		case "fact":
-			body, err := r.readBody(size)
-			if err != nil {
-				return errTruncated("fact chunk", err)
-			}
-			if len(body) >= 4 {
-				r.factFrames = int64(r.order.Uint32(body))
+			// The frame count comes from the data size; fact is not kept.
+			if _, err := r.discard(size); err != nil {
+				return errTruncated("fact chunk", noEOF(err))
 			}
 		case "ds64":
 			// Only meaningful first in an RF64 file; elsewhere it is

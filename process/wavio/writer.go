@@ -143,7 +143,7 @@ func NewWriter(ws io.WriteSeeker, opts WriterOptions) (*Writer, error) {
 }
 
 func checkChunk(c Chunk) error {
-	if len(c.ID) != 4 || !isFourCC([]byte(c.ID)) {
+	if len(c.ID) != 4 {
 		return fmt.Errorf("wavio: invalid chunk id %q", c.ID)
 	}
 	switch c.ID {
