@@ -304,7 +304,11 @@ func printDesign(w io.Writer, f *design.Filter, res designResult) {
 				lim, mar := "-", "-"
 				if c.HasLimit {
 					lim = fmt.Sprintf("%.4f", c.LimitDB)
-					mar = fmt.Sprintf("%+.4f", c.MarginDB)
+					m := c.MarginDB
+					if math.Abs(m) < 5e-5 {
+						m = 0 // no "-0.0000" for an edge met exactly
+					}
+					mar = fmt.Sprintf("%+.4f", m)
 				}
 				fmt.Fprintf(w, "  %-12s %-11s %12.4f %12s %12s\n", fmtHz(c.FrequencyHz), c.Kind, c.DesignedDB, lim, mar)
 			}
