@@ -755,3 +755,43 @@ func BenchmarkDesignElliptic16Bandstop(b *testing.B) {
 		}
 	}
 }
+
+func TestRippleEdgesLandOnRequestedHz(t *testing.T) {
+	// Chebyshev I and elliptic leave the ripple band (-ripple dB) exactly at
+	// the cutoff, Chebyshev II first reaches -attenuation dB there (the
+	// definitions of their critical frequencies; Parks & Burrus 1987, ch. 7).
+	// The crossing is found by bisection in a 0.2 % bracket around the cutoff.
+	cases := []struct {
+		st    Stage
+		level float64
+	}{
+		{Stage{Family: Chebyshev1, Response: Lowpass, Order: 5, CutoffHz: Edges{3000}, RippleDB: 1}, -1},
+		{Stage{Family: Elliptic, Response: Highpass, Order: 6, CutoffHz: Edges{40}, RippleDB: 0.1, AttenuationDB: 70}, -0.1},
+		{Stage{Family: Chebyshev2, Response: Lowpass, Order: 7, CutoffHz: Edges{10000}, AttenuationDB: 60}, -60},
+		{Stage{Family: Elliptic, Response: Bandpass, Order: 4, CutoffHz: Edges{300, 3400}, RippleDB: 0.5, AttenuationDB: 50}, -0.5},
+		{Stage{Family: Chebyshev1, Response: Bandstop, Order: 3, CutoffHz: Edges{45, 55}, RippleDB: 0.2}, -0.2},
+	}
+	for _, rate := range []float64{8000 * 3, 44100, 96000, 192000, 37800} {
+		for _, c := range cases {
+			f, err := Design(Spec{Stages: []Stage{c.st}}, rate)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, fc := range c.st.CutoffHz {
+				lo, hi := fc*0.999, fc*1.001
+				glo := f.MagnitudeDB(lo) - c.level
+				for i := 0; i < 200 && hi-lo > 1e-14*fc; i++ {
+					mid := (lo + hi) / 2
+					if g := f.MagnitudeDB(mid) - c.level; (g < 0) == (glo < 0) {
+						lo, glo = mid, g
+					} else {
+						hi = mid
+					}
+				}
+				if d := math.Abs((lo+hi)/2-fc) / fc; d > edgeRelTol {
+					t.Errorf("%s %s at %g Hz: crosses %g dB at %.15g Hz, cutoff %g (%.2g relative)", c.st.Family, c.st.Response, rate, c.level, (lo+hi)/2, fc, d)
+				}
+			}
+		}
+	}
+}
