@@ -3,6 +3,8 @@ package wavio
 import (
 	"bytes"
 	"io"
+	"os"
+	"path/filepath"
 	"testing"
 
 	"github.com/go-audio/audio"
@@ -118,5 +120,49 @@ func BenchmarkGoAudioEncode24(b *testing.B) {
 		if err := e.Close(); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// BenchmarkGoAudioFullPCMFile decodes a 24-bit stereo file of 2^15 frames
+// with go-audio/wav's FullPCMBuffer straight from an *os.File.
+func BenchmarkGoAudioFullPCMFile(b *testing.B) {
+	data := encodeWAV(b, Format{SampleRate: 48000, Channels: 2, Bits: 24, Encoding: PCM}, signal(1<<15, 2), nil)
+	name := filepath.Join(b.TempDir(), "in.wav")
+	if err := os.WriteFile(name, data, 0o644); err != nil {
+		b.Fatal(err)
+	}
+	b.SetBytes(int64(len(data)))
+	for b.Loop() {
+		f, err := os.Open(name)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if _, err := wav.NewDecoder(f).FullPCMBuffer(); err != nil {
+			b.Fatal(err)
+		}
+		f.Close()
+	}
+}
+
+// BenchmarkDecode24File is BenchmarkDecode24 from an *os.File through Open.
+func BenchmarkDecode24File(b *testing.B) {
+	data := bench24(b)
+	name := filepath.Join(b.TempDir(), "in.wav")
+	if err := os.WriteFile(name, data, 0o644); err != nil {
+		b.Fatal(err)
+	}
+	dst := make([]float64, 4096*2)
+	b.SetBytes(int64(len(data)))
+	for b.Loop() {
+		r, err := Open(name, nil)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for {
+			if _, err := r.ReadFrames(dst); err != nil {
+				break
+			}
+		}
+		r.Close()
 	}
 }

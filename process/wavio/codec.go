@@ -174,7 +174,7 @@ func (r *splitMix) next() uint64 {
 // 1992).
 func (r *splitMix) tpdf() float64 {
 	u := r.next()
-	return float64(uint32(u))*0x1p-32 - float64(u>>32)*0x1p-32
+	return float64(int64(u&0xFFFFFFFF)-int64(u>>32)) * 0x1p-32
 }
 
 // roundMagic is 1.5 * 2^52 (see encode).

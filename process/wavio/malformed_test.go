@@ -2,6 +2,7 @@ package wavio
 
 import (
 	"bytes"
+	"encoding/binary"
 	"errors"
 	"io"
 	"strings"
@@ -222,5 +223,40 @@ func TestMaxChunkSize(t *testing.T) {
 	}
 	if got := readAll(t, r, 3); !equalSamples(got, pcm16Samples) {
 		t.Fatal("samples differ")
+	}
+}
+
+// TestBW64Table builds a BW64 file by hand (ITU-R BS.2088 keeps the RF64
+// layout of EBU Tech 3306 under another ID): a ds64 chunk whose table gives
+// the true size of a LIST chunk whose 32-bit size field is 0xFFFFFFFF.
+func TestBW64Table(t *testing.T) {
+	var ds wavBuilder
+	body := chunks(ck("fmt ", fmt16), ckSize("LIST", 0xFFFFFFFF, []byte("INFO")), ckSize("data", 0xFFFFFFFF, pcm16))
+	riffSize := uint64(4 + 8 + 40 + len(body))
+	ds.raw(binary.LittleEndian.AppendUint64(nil, riffSize)...)
+	ds.raw(binary.LittleEndian.AppendUint64(nil, uint64(len(pcm16)))...)
+	ds.raw(binary.LittleEndian.AppendUint64(nil, 4)...) // sample count
+	ds.u32(1).str("LIST").raw(binary.LittleEndian.AppendUint64(nil, 4)...)
+	var b wavBuilder
+	b.str("BW64").u32(0xFFFFFFFF).str("WAVE").chunk("ds64", 40, ds.buf.Bytes(), true)
+	b.raw(body...)
+	for _, stream := range []bool{false, true} {
+		var src io.Reader = bytes.NewReader(b.buf.Bytes())
+		if stream {
+			src = plain{src}
+		}
+		r, err := NewReader(src, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !r.Format().RF64 || r.Frames() != 4 {
+			t.Fatalf("RF64 %v, %d frames", r.Format().RF64, r.Frames())
+		}
+		if c := r.Chunks(); len(c) != 1 || string(c[0].Data) != "INFO" {
+			t.Fatalf("chunks %+v", c)
+		}
+		if got := readAll(t, r, 3); !equalSamples(got, pcm16Samples) || len(r.Warnings()) != 0 {
+			t.Fatalf("samples %v, warnings %v", got, r.Warnings())
+		}
 	}
 }
