@@ -34,6 +34,7 @@ func commands() []command {
 	return []command{
 		{"design", "design a filter from a spec at a sample rate and report or plot it", runDesign},
 		{"apply", "filter WAV files and folders, each at its own sample rate", runApply},
+		{"report", "make a self-contained HTML report of an apply run or a survey", runReport},
 	}
 }
 

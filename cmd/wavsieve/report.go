@@ -1,0 +1,95 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+
+	"github.com/spf13/pflag"
+	htmlreport "github.com/wavsieve/wavsieve/analyze/report"
+)
+
+const reportHelp = `Make a self-contained HTML report of an apply run or a survey.
+
+Usage:
+  wavsieve report --from <manifest.json|survey.json> --output <report.html> [flags]
+
+The report is one HTML file with every plot embedded as SVG; it fetches
+nothing and opens offline in any browser. From an apply manifest it shows,
+per file, the before/after spectra, the filter as designed at the file's
+rate with its pole/zero diagram, the verification table when the run was
+verified (apply --verify), and the whole manifest as a table that sorts by
+any column. From a survey document (survey --json) it shows each file's
+spectrum, its hum and its suggested spec.
+
+Examples:
+  wavsieve apply --spec samples/specs/rumble-and-hum.json --verify --output out/clean samples
+  wavsieve report --from out/clean/wavsieve-manifest.json --output out/clean/report.html
+
+  wavsieve survey --json samples > out/survey.json
+  wavsieve report --from out/survey.json --output out/survey.html
+
+Flags:
+`
+
+func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	fs := pflag.NewFlagSet("report", pflag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	from := fs.String("from", "", "the apply manifest or survey `document` (JSON)")
+	output := fs.StringP("output", "o", "", "the HTML `file` to write")
+	maxS := fs.Float64("max-seconds", 120, "analyse at most this many `seconds` of each file")
+	help := fs.BoolP("help", "h", false, "show this help")
+	if err := fs.Parse(args); err != nil {
+		return report(stderr, "report", usagef("%v", err), "")
+	}
+	if *help {
+		fmt.Fprint(stdout, reportHelp)
+		fmt.Fprint(stdout, fs.FlagUsages())
+		return exitOK
+	}
+	if *from == "" || *output == "" {
+		return report(stderr, "report", usagef("give --from and --output"), "")
+	}
+	if fs.NArg() > 0 {
+		return report(stderr, "report", usagef("unexpected argument %q", fs.Arg(0)), "")
+	}
+	data, err := os.ReadFile(*from)
+	if err != nil {
+		return report(stderr, "report", err, "")
+	}
+	var probe struct {
+		Spec  json.RawMessage   `json:"spec"`
+		Files []json.RawMessage `json:"files"`
+	}
+	if err := json.Unmarshal(data, &probe); err != nil || probe.Files == nil {
+		return report(stderr, "report", fmt.Errorf("%s: not a manifest of wavsieve apply nor a survey document", *from), "make one with 'wavsieve apply' (it writes wavsieve-manifest.json) or 'wavsieve survey --json'")
+	}
+	var isSurvey bool
+	if len(probe.Files) > 0 {
+		var f map[string]json.RawMessage
+		json.Unmarshal(probe.Files[0], &f)
+		_, isSurvey = f["path"]
+	}
+	opt := htmlreport.Options{MaxSeconds: *maxS}
+	var r htmlreport.Report
+	if isSurvey || probe.Spec == nil {
+		r, err = htmlreport.FromSurvey(data, "", opt)
+	} else {
+		r, err = htmlreport.FromApply(data, "", opt)
+	}
+	if err != nil {
+		return report(stderr, "report", fmt.Errorf("%s: %w", *from, err), "")
+	}
+	var b bytes.Buffer
+	if err := htmlreport.Write(&b, r); err != nil {
+		return report(stderr, "report", err, "")
+	}
+	if err := writeFileAtomic(*output, b.Bytes()); err != nil {
+		return report(stderr, "report", err, "")
+	}
+	fmt.Fprintf(stderr, "wavsieve report: wrote %s (%d files, %d KiB)\n", *output, len(r.Files), b.Len()/1024)
+	return exitOK
+}
+
