@@ -92,4 +92,3 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fmt.Fprintf(stderr, "wavsieve report: wrote %s (%d files, %d KiB)\n", *output, len(r.Files), b.Len()/1024)
 	return exitOK
 }
-
