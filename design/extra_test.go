@@ -38,28 +38,3 @@ func loadExtra(t testing.TB) *extraFile {
 	}
 	return &r
 }
-
-// bilinearFS reads the sample rate of a bilinear reference case.
-func bilinearFS(t testing.TB, r *refFile, name string) float64 {
-	t.Helper()
-	b, err := os.ReadFile("../testdata/design/scipy_refs.json")
-	if err != nil {
-		t.Fatal(err)
-	}
-	var v struct {
-		Bilinear []struct {
-			Name string  `json:"name"`
-			FS   float64 `json:"fs"`
-		} `json:"bilinear"`
-	}
-	if err := json.Unmarshal(b, &v); err != nil {
-		t.Fatal(err)
-	}
-	for _, c := range v.Bilinear {
-		if c.Name == name {
-			return c.FS
-		}
-	}
-	t.Fatalf("no fs for %s", name)
-	return 0
-}

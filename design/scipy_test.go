@@ -58,9 +58,10 @@ type refFile struct {
 		Reason string          `json:"reason"`
 	} `json:"skipped"`
 	Bilinear []struct {
-		Name    string `json:"name"`
-		Analog  refZPK `json:"analog"`
-		Digital refZPK `json:"digital"`
+		Name    string  `json:"name"`
+		FS      float64 `json:"fs"`
+		Analog  refZPK  `json:"analog"`
+		Digital refZPK  `json:"digital"`
 	} `json:"bilinear"`
 	Prototypes []struct {
 		Name  string   `json:"name"`

@@ -14,6 +14,7 @@ import (
 	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/analyze/plots"
 	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -31,33 +32,14 @@ func (o Options) maxSeconds() float64 {
 	return 120
 }
 
-// applyManifest is the part of an apply manifest a report uses.
+// applyManifest is an apply manifest as a report reads it: the results
+// of the run, each with the verification document when the run was verified.
 type applyManifest struct {
 	Files []struct {
-		Input       string          `json:"input"`
-		Output      string          `json:"output"`
-		SampleRate  int             `json:"sample_rate_hz"`
-		Channels    int             `json:"channels"`
-		Frames      int64           `json:"frames"`
-		Format      string          `json:"format"`
-		OutFormat   string          `json:"output_format"`
-		DurationS   float64         `json:"duration_s"`
-		ZeroPhase   bool            `json:"zero_phase"`
-		PeakIn      []float64       `json:"peak_in_dbfs"`
-		PeakOut     []float64       `json:"peak_out_dbfs"`
-		Clipped     []int64         `json:"clipped_samples"`
-		Seconds     float64         `json:"seconds"`
-		Status      string          `json:"status"`
-		Error       string          `json:"error"`
-		Warnings    []string        `json:"warnings"`
-		Verify      json.RawMessage `json:"verify"`
-		PadFrames   int             `json:"zero_phase_pad_frames"`
-		EdgeFrames  int             `json:"edge_transient_frames"`
-		DitherSeed  uint64          `json:"dither_seed"`
-		DesignLines json.RawMessage `json:"design"`
+		process.FileResult
+		Verify json.RawMessage `json:"verify"`
 	} `json:"files"`
-	Spec   json.RawMessage `json:"spec"`
-	DryRun bool            `json:"dry_run"`
+	Spec json.RawMessage `json:"spec"`
 }
 
 // verifyDoc is the verification document of one file.
@@ -106,7 +88,7 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 		}
 		r.Table.Rows = append(r.Table.Rows, []string{
 			f.Input, f.Output, f.Status, strconv.Itoa(f.SampleRate), strconv.Itoa(f.Channels), fmt.Sprintf("%.3f", f.DurationS),
-			fmtMax(f.PeakIn), fmtMax(f.PeakOut), strconv.FormatInt(sumInts(f.Clipped), 10), verdict, fmt.Sprintf("%.2f", f.Seconds), f.Error,
+			fmtMax(f.PeakInDBFS), fmtMax(f.PeakOutDBFS), strconv.FormatInt(sumInts(f.Clipped), 10), verdict, fmt.Sprintf("%.2f", f.Seconds), f.Error,
 		})
 		r.Table.RowClass = append(r.Table.RowClass, f.Status)
 
@@ -126,11 +108,11 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 		sec.Facts = [][2]string{
 			{"input", f.Input}, {"output", f.Output}, {"format", f.Format + " → " + f.OutFormat},
 			{"duration", fmt.Sprintf("%.3f s (%d frames)", f.DurationS, f.Frames)}, {"filtering", mode},
-			{"peak in / out", fmtList(f.PeakIn) + " / " + fmtList(f.PeakOut) + " dBFS"},
+			{"peak in / out", fmtList(f.PeakInDBFS) + " / " + fmtList(f.PeakOutDBFS) + " dBFS"},
 			{"clipped samples", fmt.Sprint(f.Clipped)}, {"time taken", fmt.Sprintf("%.2f s", f.Seconds)},
 		}
 		if f.ZeroPhase {
-			sec.Facts = append(sec.Facts, [2]string{"end padding", fmt.Sprintf("%d frames at each end; %d frames of transient may remain", f.PadFrames, f.EdgeFrames)})
+			sec.Facts = append(sec.Facts, [2]string{"end padding", fmt.Sprintf("%d frames at each end; %d frames of transient may remain", f.PadFrames, f.EdgeTransient)})
 		}
 		for _, w := range f.Warnings {
 			sec.Facts = append(sec.Facts, [2]string{"warning", w})
