@@ -393,15 +393,22 @@ func Verify(f *design.Filter, e *Estimator, tr *Transfer, pts []VerifyPoint, cha
 		r.DesignedDB = num(designed)
 		if fm < p.Lo || fm > p.Hi {
 			r.Verdict = VerdictUnmeasurable
-			r.Reason = fmt.Sprintf("the band is narrower than the %.4g Hz resolution needs; a longer recording (or probe) allows a longer segment", df*(2*verifyEdgeGuardBins+1))
+			r.Reason = fmt.Sprintf("the band is narrower than the %.4g Hz resolution needs; a longer recording (or --probe) allows a longer segment", df*(2*verifyEdgeGuardBins+1))
 			out = append(out, r)
 			continue
 		}
 		bias := delayBias(f, win, fm)
 		exp := designed + bias
 		lo, hi := exp, exp
-		for _, d := range []float64{-2, -1, -0.5, 0.5, 1, 2} {
-			v := f.EffectiveDB(fm+d*df) + bias
+		// The range over the window's half-power width, about a bin on
+		// each side for Blackman-Harris (1.90 bins wide at -3 dB: Harris
+		// 1978, table 1), clipped to (0, fs/2).
+		for _, d := range []float64{-1, -0.5, 0.5, 1} {
+			hz := fm + d*df
+			if !(hz > 0 && hz < o.SampleRate/2) {
+				continue
+			}
+			v := f.EffectiveDB(hz) + bias
 			lo, hi = math.Min(lo, v), math.Max(hi, v)
 		}
 		r.ExpectedDB, r.ExpectedLowDB, r.ExpectedHighDB = num(exp), num(lo), num(hi)
@@ -467,7 +474,7 @@ func Verify(f *design.Filter, e *Estimator, tr *Transfer, pts []VerifyPoint, cha
 			r.Reason = fmt.Sprintf("not measurable below %.1f dB: the input's density here (%.1f dBFS^2/Hz) is too low against the output's uncorrelated floor (%.1f dBFS^2/Hz; coherence %.3g)", floor, 10*math.Log10(pxx), 10*math.Log10(nout), tp.Coherence)
 		case !p.HasLimit && hi-lo > VerifyMaxSpreadDB:
 			r.Verdict = VerdictUnmeasurable
-			r.Reason = fmt.Sprintf("the design changes by %.1f dB within the %.3g Hz resolution here; a longer recording (or probe) allows a longer segment", hi-lo, 4*df)
+			r.Reason = fmt.Sprintf("the design changes by %.1f dB within the %.3g Hz resolution here; a longer recording (or --probe) allows a longer segment", hi-lo, 2*df)
 		default:
 			r.Verdict = VerdictPass
 		}

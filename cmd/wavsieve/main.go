@@ -34,6 +34,8 @@ func commands() []command {
 	return []command{
 		{"design", "design a filter from a spec at a sample rate and report or plot it", runDesign},
 		{"apply", "filter WAV files and folders, each at its own sample rate", runApply},
+		{"spectrum", "estimate the power spectrum of a WAV file, or compare two", runSpectrum},
+		{"verify", "measure a filtering run and check it against the spec", runVerify},
 		{"report", "make a self-contained HTML report of an apply run or a survey", runReport},
 	}
 }
