@@ -115,4 +115,3 @@ func Verify(w io.Writer, format string, f *design.Filter, marks []VerifyMark, op
 		p.Draw(c)
 	})
 }
-
