@@ -238,48 +238,77 @@ func (c *Cascade) Process(dst, src []float64) []float64 {
 	if c.steady && !c.primed {
 		c.Prime(dst[:c.ch])
 	}
-	n := len(dst) / c.ch
-	for i := range c.units {
-		u := &c.units[i]
-		if u.pair {
-			c.runPair(dst[u.c:], n, u.z)
-		} else {
-			c.runSingle(dst[u.c:], n, u.z)
-		}
-	}
+	c.run(dst, 1)
 	return dst
 }
 
-// runPair filters channels c and c+1 of n frames starting at x[0], with
-// frame stride c.ch. Sections go in groups of four through the
-// wavefront kernel (wave4: section k works on frame t-k at step t, so
-// the four recursions are independent and overlap in the CPU), the rest
-// one at a time. Every path does the same arithmetic in the same order
-// for each sample, so the output does not depend on the path taken.
-func (c *Cascade) runPair(x []float64, n int, z []float64) {
-	st := c.ch
+// processReverse filters the frames of x in place in reverse time
+// order, last frame first: the result, bit for bit, of reversing the
+// frames, calling Process and reversing them back, without the two
+// reversals (the backward pass of ZeroPhase). With SteadyStart the last
+// frame primes the state.
+func (c *Cascade) processReverse(x []float64) {
+	if len(x)%c.ch != 0 {
+		panic(fmt.Sprintf("process: processReverse: block of %d samples is not a whole number of %d-channel frames", len(x), c.ch))
+	}
+	if len(x) == 0 {
+		return
+	}
+	if c.steady && !c.primed {
+		c.Prime(x[len(x)-c.ch:])
+	}
+	c.run(x, -1)
+}
+
+// run filters the frames of x in place, in time order for dir = 1 and
+// in reverse for dir = -1.
+func (c *Cascade) run(x []float64, dir int) {
+	n := len(x) / c.ch
+	step, first := c.ch, 0
+	if dir < 0 {
+		step, first = -c.ch, (n-1)*c.ch
+	}
+	for i := range c.units {
+		u := &c.units[i]
+		if u.pair {
+			c.runPair(x, first+u.c, n, step, u.z)
+		} else {
+			c.runSingle(x, first+u.c, n, step, u.z)
+		}
+	}
+}
+
+// runPair filters channels c and c+1 of n frames, the first at x[off],
+// the next step samples further (step < 0 goes back in memory). Sections
+// go in groups of four through the wavefront kernel (wave4: section k
+// works on frame t-k at step t, so the four recursions are independent
+// and overlap in the CPU), the rest one at a time. Every path does the
+// same arithmetic in the same order for each sample, so the output does
+// not depend on the path taken.
+func (c *Cascade) runPair(x []float64, off, n, step int, z []float64) {
 	s := 0
 	if useWave4 && n >= 4 {
 		for ; s+4 <= len(c.sec); s += 4 {
 			// Prologue: bring sections s+0..s+2 to the wavefront.
-			pairSection(x, 0, 3, st, &c.sec[s], z[4*s:4*s+4])
-			pairSection(x, 0, 2, st, &c.sec[s+1], z[4*s+4:4*s+8])
-			pairSection(x, 0, 1, st, &c.sec[s+2], z[4*s+8:4*s+12])
-			wave4(&x[3*st], n-3, st, &c.wide[10*s], &z[4*s])
+			pairSection(x, off, 0, 3, step, &c.sec[s], z[4*s:4*s+4])
+			pairSection(x, off, 0, 2, step, &c.sec[s+1], z[4*s+4:4*s+8])
+			pairSection(x, off, 0, 1, step, &c.sec[s+2], z[4*s+8:4*s+12])
+			_ = x[off+(n-1)*step+1] // the kernel's last frame is in x
+			wave4(&x[off+3*step], n-3, step, &c.wide[10*s], &z[4*s])
 			// Epilogue: sections s+1..s+3 catch up with the last frames.
-			pairSection(x, n-1, n, st, &c.sec[s+1], z[4*s+4:4*s+8])
-			pairSection(x, n-2, n, st, &c.sec[s+2], z[4*s+8:4*s+12])
-			pairSection(x, n-3, n, st, &c.sec[s+3], z[4*s+12:4*s+16])
+			pairSection(x, off, n-1, n, step, &c.sec[s+1], z[4*s+4:4*s+8])
+			pairSection(x, off, n-2, n, step, &c.sec[s+2], z[4*s+8:4*s+12])
+			pairSection(x, off, n-3, n, step, &c.sec[s+3], z[4*s+12:4*s+16])
 		}
 	}
 	for ; s < len(c.sec); s++ {
-		pairSection(x, 0, n, st, &c.sec[s], z[4*s:4*s+4])
+		pairSection(x, off, 0, n, step, &c.sec[s], z[4*s:4*s+4])
 	}
 }
 
 // pairSection runs one section over frames [from, to) of a channel
-// pair. Transposed direct form II (Oppenheim & Schafer, 3rd ed.,
-// fig. 6.27):
+// pair, frame j at x[off+j*step]. Transposed direct form II (Oppenheim
+// & Schafer, 3rd ed., fig. 6.27):
 //
 //	y  = b0 x + z1
 //	z1 = (b1 x - a1 y) + z2
@@ -290,10 +319,11 @@ func (c *Cascade) runPair(x []float64, n int, z []float64) {
 // and zeros close to z = 1). The float64 conversions forbid fused
 // multiply-adds, so every architecture and the assembly kernel round
 // alike too.
-func pairSection(x []float64, from, to, stride int, sec *design.Section, z []float64) {
+func pairSection(x []float64, off, from, to, step int, sec *design.Section, z []float64) {
 	b0, b1, b2, a1, a2 := sec[0], sec[1], sec[2], sec[4], sec[5]
 	l1, r1, l2, r2 := z[0], z[1], z[2], z[3]
-	for i := from * stride; i < to*stride; i += stride {
+	i := off + from*step
+	for j := from; j < to; j++ {
 		p := x[i : i+2 : i+2]
 		xl, xr := p[0], p[1]
 		yl := float64(b0*xl) + l1
@@ -303,25 +333,27 @@ func pairSection(x []float64, from, to, stride int, sec *design.Section, z []flo
 		l2 = float64(b2*xl) - float64(a2*yl)
 		r2 = float64(b2*xr) - float64(a2*yr)
 		p[0], p[1] = yl, yr
+		i += step
 	}
 	z[0], z[1], z[2], z[3] = l1, r1, l2, r2
 }
 
-// runSingle filters one channel of n frames starting at x[0], section
-// after section, with the arithmetic of pairSection.
-func (c *Cascade) runSingle(x []float64, n int, z []float64) {
-	st := c.ch
-	end := (n-1)*st + 1
+// runSingle filters one channel of n frames, the first at x[off], the
+// next step samples further, section after section, with the arithmetic
+// of pairSection.
+func (c *Cascade) runSingle(x []float64, off, n, step int, z []float64) {
 	for s := range c.sec {
 		sec := &c.sec[s]
 		b0, b1, b2, a1, a2 := sec[0], sec[1], sec[2], sec[4], sec[5]
 		z1, z2 := z[2*s], z[2*s+1]
-		for i := 0; i < end; i += st {
+		i := off
+		for j := 0; j < n; j++ {
 			xi := x[i]
 			y := float64(b0*xi) + z1
 			z1 = float64(float64(b1*xi)-float64(a1*y)) + z2
 			z2 = float64(b2*xi) - float64(a2*y)
 			x[i] = y
+			i += step
 		}
 		z[2*s], z[2*s+1] = z1, z2
 	}

@@ -123,24 +123,13 @@ func ZeroPhase(dst FrameSink, src FrameSource, sos []design.Section, cfg Config,
 	if opt.SpillMemoryBytes != 0 {
 		mem = max(0, opt.SpillMemoryBytes)
 	}
-	st := &spillStore{dir: opt.TempDir, memLimit: int(mem/8) / spillChunk * spillChunk}
+	st := newSpillStore(z.ch, int(mem/8)/spillStep*spillStep, z.block, opt.TempDir)
 	defer st.close()
 	rep, err := z.run(src, st)
 	if err != nil {
 		return rep, err
 	}
-	out := make([]float64, z.block*z.ch)
-	for at := 0; at < rep.Frames; at += z.block {
-		n := min(z.block, rep.Frames-at)
-		p := out[:n*z.ch]
-		if err := st.read(p, at*z.ch); err != nil {
-			return rep, err
-		}
-		if err := dst.WriteFrames(p); err != nil {
-			return rep, fmt.Errorf("process: zero-phase output: %w", err)
-		}
-	}
-	return rep, nil
+	return rep, st.deliver(dst, rep.Frames, z.block)
 }
 
 // ZeroPhaseSlice is ZeroPhase for a signal held in memory: it filters
@@ -161,7 +150,8 @@ func ZeroPhaseSlice(dst, src []float64, sos []design.Section, cfg Config, opt Ze
 	if len(dst) != len(src) {
 		panic(fmt.Sprintf("process: ZeroPhaseSlice: len(dst) = %d, len(src) = %d", len(dst), len(src)))
 	}
-	rep, err := z.run(&sliceSource{x: src, ch: z.ch}, memStore(dst))
+	st := &spillStore{ch: z.ch, mem: dst, memFrames: len(dst) / z.ch}
+	rep, err := z.run(&sliceSource{x: src, ch: z.ch}, st)
 	return dst, rep, err
 }
 
@@ -224,7 +214,7 @@ func newZeroPhase(sos []design.Section, cfg Config, opt ZeroPhaseOptions) (*zero
 
 // run does the forward pass into st, then the backward pass in place
 // in st. Positions in st are sample indices of the signal.
-func (z *zeroPhase) run(src FrameSource, st store) (EdgeReport, error) {
+func (z *zeroPhase) run(src FrameSource, st *spillStore) (EdgeReport, error) {
 	ch, c := z.ch, z.c
 	rep := EdgeReport{PadFrames: z.opt.PadFrames}
 	pad := z.opt.PadFrames
@@ -263,36 +253,50 @@ func (z *zeroPhase) run(src FrameSource, st store) (EdgeReport, error) {
 	c.Process(padBuf, padBuf) // output before the signal is not wanted
 
 	// Forward pass over the signal, keeping the last keep input frames.
+	// The frames are read straight into the store's memory or its file
+	// buffer and filtered there in place, block by block while they are
+	// in cache.
 	tail := newRing(keep, ch)
-	buf := make([]float64, z.block*ch)
 	last := make([]float64, ch) // last forward output
-	at := 0
-	forward := func(p []float64) error {
-		tail.push(p)
-		c.Process(p, p)
-		copy(last, p[len(p)-ch:])
-		err := st.write(p, at)
-		at += len(p)
-		return err
-	}
-	for i := 0; i < len(head); i += len(buf) {
-		if err := forward(head[i:min(i+len(buf), len(head))]); err != nil {
-			return rep, err
+	ps := &prefixSource{pre: head, src: src, ch: ch, eof: eof}
+	forward := func(p []float64) (frames int, eof bool, err error) {
+		n, eof, err := readFull(ps, p, ch)
+		if err != nil || n == 0 {
+			return 0, eof, err
 		}
+		q := p[:n*ch]
+		tail.push(q)
+		c.Process(q, q)
+		copy(last, q[len(q)-ch:])
+		return n, eof, nil
 	}
-	for !eof {
-		var n int
-		n, eof, err = readFull(src, buf, ch)
+	at := 0 // frames done
+	for done := false; !done; {
+		if m := st.memSpan(at); m != nil {
+			st.prefault(at)
+			n, eof, err := forward(m[:min(len(m), z.block*ch)])
+			if err != nil {
+				return rep, err
+			}
+			at, done = at+n, eof
+			continue
+		}
+		buf, err := st.fileBuf()
 		if err != nil {
 			return rep, err
 		}
-		if n > 0 {
-			if err := forward(buf[:n*ch]); err != nil {
+		off := 0
+		for off < len(buf) && !done {
+			n, eof, err := forward(buf[off:min(off+z.block*ch, len(buf))])
+			if err != nil {
 				return rep, err
 			}
+			off, done = off+n*ch, eof
 		}
+		st.fileWrite(buf[:off])
+		at += off / ch
 	}
-	frames := at / ch
+	frames := at
 	rep.Frames = frames
 
 	// Right extension, filtered forward; its output is the start of the
@@ -305,25 +309,13 @@ func (z *zeroPhase) run(src FrameSource, st store) (EdgeReport, error) {
 		copy(last, padBuf[len(padBuf)-ch:])
 	}
 
-	// Backward pass: the right extension, then the signal in reverse
-	// blocks, each written back over its forward values.
+	// Backward pass: the right extension, then the signal from its end,
+	// in place (Cascade.processReverse).
 	c.Reset()
 	c.Prime(last)
-	reverseFrames(padBuf, ch)
-	c.Process(padBuf, padBuf)
-	for end := frames; end > 0; {
-		start := max(0, end-z.block)
-		p := buf[:(end-start)*ch]
-		if err := st.read(p, start*ch); err != nil {
-			return rep, err
-		}
-		reverseFrames(p, ch)
-		c.Process(p, p)
-		reverseFrames(p, ch)
-		if err := st.write(p, start*ch); err != nil {
-			return rep, err
-		}
-		end = start
+	c.processReverse(padBuf)
+	if err := st.backward(c, frames); err != nil {
+		return rep, err
 	}
 	rep.TransientFrames = max(0, z.opt.DecayFrames-rep.PadFrames)
 	return rep, nil
@@ -479,76 +471,277 @@ func (r *ring) frames() []float64 {
 	return append(append(out, r.buf[r.next:]...), r.buf[:r.next]...)
 }
 
-// store holds the signal between the passes; positions are sample
-// indices.
-type store interface {
-	write(p []float64, at int) error
-	read(p []float64, at int) error
-}
-
-type memStore []float64
-
-func (m memStore) write(p []float64, at int) error { copy(m[at:], p); return nil }
-func (m memStore) read(p []float64, at int) error  { copy(p, m[at:]); return nil }
-
-// spillStore keeps the first memLimit samples in memory, in chunks
-// allocated as they are reached, and the rest in a file (lazily
-// created). The file holds raw float64 in the machine's byte order: it
-// is private to this process and removed after the run.
+// spillStore holds the signal between the passes: its first memFrames
+// frames in mem, the rest in a file (created when first needed). The
+// file is read and written in segments of ioFrames frames through two
+// buffers by an I/O goroutine, so that the transfers overlap the
+// filtering; the filtering itself and the order of every operation on
+// the samples stay those of a single goroutine, so the output does not
+// depend on the timing. The file holds raw float64 in the machine's
+// byte order: it is private to this process and removed by close.
 type spillStore struct {
-	dir      string
-	f        *os.File
-	chunks   [][]float64
-	memLimit int // a multiple of spillChunk
+	ch        int
+	mem       []float64
+	memFrames int
+	release   func() // frees mem and the buffers
+	faulted   int    // samples of mem asked to be mapped
+
+	dir        string
+	ioFrames   int
+	bufs       [2][]float64
+	f          *os.File
+	reqs       chan spillReq
+	exited     chan struct{}
+	done       [2]chan error
+	pending    [2]int
+	cur        int // buffer the forward pass fills next
+	fileFrames int // frames written to the file
 }
 
-const spillChunk = 1 << 20 // samples
+type spillReq struct {
+	op   int // opRead, opWrite or opFault
+	p    []float64
+	at   int64 // byte offset in the file
+	done chan error
+}
 
+const (
+	opRead = iota
+	opWrite
+	opFault // map the memory of p (prefault)
+)
+
+// spillStep is the unit of SpillMemoryBytes, in samples (8 MiB), and
+// spillIOBytes the size of each of the two file buffers: a few large
+// sequential transfers instead of one system call per block. They are
+// variables so that tests can run many steps and segments on a short
+// signal.
+var (
+	spillStep    = 1 << 20
+	spillIOBytes = 4 << 20
+)
+
+// newSpillStore reserves memSamples of memory (rounded down to whole
+// frames) and the two file buffers in one mapping (mapSamples), which
+// the system backs only as it is touched.
+func newSpillStore(ch, memSamples, block int, dir string) *spillStore {
+	s := &spillStore{ch: ch, dir: dir, memFrames: memSamples / ch}
+	s.ioFrames = max(block, spillIOBytes/8/ch)
+	memN, ioN := s.memFrames*ch, s.ioFrames*ch
+	all, release := mapSamples(memN + 2*ioN)
+	s.mem, s.release = all[:memN:memN], release
+	s.bufs[0] = all[memN : memN+ioN : memN+ioN]
+	s.bufs[1] = all[memN+ioN:]
+	return s
+}
+
+// close stops the I/O goroutine, removes the file and frees the memory.
 func (s *spillStore) close() {
+	if s.reqs != nil {
+		close(s.reqs)
+		<-s.exited
+	}
 	if s.f != nil {
 		s.f.Close()
 		os.Remove(s.f.Name())
 	}
+	if s.release != nil {
+		s.release()
+	}
 }
 
-func (s *spillStore) write(p []float64, at int) error {
-	for len(p) > 0 && at < s.memLimit {
-		k := at / spillChunk
-		for len(s.chunks) <= k {
-			s.chunks = append(s.chunks, make([]float64, spillChunk))
-		}
-		n := copy(s.chunks[k][at%spillChunk:], p)
-		p, at = p[n:], at+n
+// startIO starts the I/O goroutine if it is not running.
+func (s *spillStore) startIO() {
+	if s.reqs == nil {
+		s.reqs = make(chan spillReq, 4)
+		s.exited = make(chan struct{})
+		s.done = [2]chan error{make(chan error, 4), make(chan error, 4)}
+		go s.serve()
 	}
-	if len(p) == 0 {
+}
+
+// prefault asks the I/O goroutine to map the memory up to two steps
+// beyond frame at, so that the forward pass, which comes next, finds it
+// mapped: the page faults are taken on the other core (only for the
+// memory of mapSamples, which release returns to the system).
+func (s *spillStore) prefault(at int) {
+	if s.release == nil {
+		return
+	}
+	end := min(len(s.mem), (at*s.ch/spillStep+2)*spillStep)
+	for s.faulted < end {
+		n := min(spillStep, end-s.faulted)
+		s.startIO()
+		s.reqs <- spillReq{op: opFault, p: s.mem[s.faulted : s.faulted+n]}
+		s.faulted += n
+	}
+}
+
+// memSpan returns the memory from frame at to the end of the in-memory
+// part, or nil if at is beyond it.
+func (s *spillStore) memSpan(at int) []float64 {
+	if at >= s.memFrames {
 		return nil
 	}
+	return s.mem[at*s.ch:]
+}
+
+// fileBuf returns the buffer the forward pass fills next, once its
+// previous transfer is done.
+func (s *spillStore) fileBuf() ([]float64, error) {
 	if s.f == nil {
 		f, err := os.CreateTemp(s.dir, "wavsieve-spill-*.f64")
 		if err != nil {
-			return fmt.Errorf("process: zero-phase spill: %w", err)
+			return nil, fmt.Errorf("process: zero-phase spill: %w", err)
 		}
 		s.f = f
+		s.startIO()
 	}
-	if _, err := s.f.WriteAt(asBytes(p), 8*int64(at-s.memLimit)); err != nil {
-		return fmt.Errorf("process: zero-phase spill: %w", err)
+	if err := s.wait(s.cur); err != nil {
+		return nil, err
 	}
+	return s.bufs[s.cur], nil
+}
+
+// fileWrite queues p (the start of the buffer fileBuf returned) for
+// writing after the frames already in the file.
+func (s *spillStore) fileWrite(p []float64) {
+	if len(p) == 0 {
+		return
+	}
+	s.submit(s.cur, opWrite, p, s.fileFrames)
+	s.fileFrames += len(p) / s.ch
+	s.cur ^= 1
+}
+
+// segment returns the frames of file segment k, of ioFrames frames.
+func (s *spillStore) segment(k int) (at, n int) {
+	at = k * s.ioFrames
+	return at, min(s.ioFrames, s.fileFrames-at)
+}
+
+func (s *spillStore) segments() int {
+	if s.fileFrames == 0 {
+		return 0
+	}
+	return (s.fileFrames + s.ioFrames - 1) / s.ioFrames
+}
+
+func (s *spillStore) submit(i, op int, p []float64, atFrame int) {
+	s.pending[i]++
+	s.reqs <- spillReq{op: op, p: p, at: 8 * int64(atFrame) * int64(s.ch), done: s.done[i]}
+}
+
+// wait waits for the transfers queued on buffer i and returns the first
+// error among them.
+func (s *spillStore) wait(i int) error {
+	var first error
+	for ; s.pending[i] > 0; s.pending[i]-- {
+		if err := <-s.done[i]; err != nil && first == nil {
+			first = err
+		}
+	}
+	return first
+}
+
+func (s *spillStore) waitAll() error {
+	e0 := s.wait(0)
+	return firstErr(e0, s.wait(1))
+}
+
+// serve runs the transfers in the order they were queued.
+func (s *spillStore) serve() {
+	defer close(s.exited)
+	for r := range s.reqs {
+		var err error
+		switch r.op {
+		case opFault:
+			prefault(r.p)
+			continue
+		case opWrite:
+			_, err = s.f.WriteAt(asBytes(r.p), r.at)
+		default:
+			if _, err = s.f.ReadAt(asBytes(r.p), r.at); err == io.EOF {
+				err = io.ErrUnexpectedEOF
+			}
+		}
+		if err != nil {
+			err = fmt.Errorf("process: zero-phase spill: %w", err)
+		}
+		r.done <- err
+	}
+}
+
+// backward runs c backward over the frames, in place: first the file
+// segments from the last one, each read ahead while the previous one
+// is filtered, then the memory.
+func (s *spillStore) backward(c *Cascade, frames int) error {
+	if k := s.segments(); k > 0 {
+		if err := s.waitAll(); err != nil {
+			return err
+		}
+		read := func(k int) {
+			if k >= 0 {
+				at, n := s.segment(k)
+				i := k % 2
+				s.submit(i, opRead, s.bufs[i][:n*s.ch], at)
+			}
+		}
+		read(k - 1)
+		read(k - 2)
+		for k--; k >= 0; k-- {
+			i := k % 2
+			if err := s.wait(i); err != nil {
+				return err
+			}
+			at, n := s.segment(k)
+			p := s.bufs[i][:n*s.ch]
+			c.processReverse(p)
+			s.submit(i, opWrite, p, at)
+			read(k - 2)
+		}
+		if err := s.waitAll(); err != nil {
+			return err
+		}
+	}
+	c.processReverse(s.mem[:min(frames, s.memFrames)*s.ch])
 	return nil
 }
 
-func (s *spillStore) read(p []float64, at int) error {
-	for len(p) > 0 && at < s.memLimit {
-		n := copy(p, s.chunks[at/spillChunk][at%spillChunk:])
-		p, at = p[n:], at+n
+// deliver writes the frames to dst in forward order, in blocks of block
+// frames: the memory, then the file segments, read ahead.
+func (s *spillStore) deliver(dst FrameSink, frames, block int) error {
+	k := s.segments()
+	for j := 0; j < min(k, 2); j++ {
+		at, n := s.segment(j)
+		s.submit(j, opRead, s.bufs[j][:n*s.ch], at)
 	}
-	if len(p) == 0 {
+	put := func(p []float64) error {
+		for len(p) > 0 {
+			n := min(len(p), block*s.ch)
+			if err := dst.WriteFrames(p[:n]); err != nil {
+				return fmt.Errorf("process: zero-phase output: %w", err)
+			}
+			p = p[n:]
+		}
 		return nil
 	}
-	if _, err := s.f.ReadAt(asBytes(p), 8*int64(at-s.memLimit)); err != nil {
-		if err == io.EOF {
-			err = io.ErrUnexpectedEOF
+	if err := put(s.mem[:min(frames, s.memFrames)*s.ch]); err != nil {
+		return err
+	}
+	for j := 0; j < k; j++ {
+		i := j % 2
+		if err := s.wait(i); err != nil {
+			return err
 		}
-		return fmt.Errorf("process: zero-phase spill: %w", err)
+		_, n := s.segment(j)
+		if err := put(s.bufs[i][:n*s.ch]); err != nil {
+			return err
+		}
+		if j+2 < k {
+			at, n := s.segment(j + 2)
+			s.submit(i, opRead, s.bufs[i][:n*s.ch], at)
+		}
 	}
 	return nil
 }
@@ -568,6 +761,30 @@ func (s *sliceSource) ReadFrames(dst []float64) (int, error) {
 	n := copy(dst[:len(dst)/s.ch*s.ch], s.x)
 	s.x = s.x[n:]
 	if len(s.x) == 0 {
+		return n / s.ch, io.EOF
+	}
+	return n / s.ch, nil
+}
+
+// prefixSource delivers the frames of pre, then the rest of src; eof
+// says that src has already ended.
+type prefixSource struct {
+	pre []float64
+	src FrameSource
+	ch  int
+	eof bool
+}
+
+func (s *prefixSource) ReadFrames(dst []float64) (int, error) {
+	if len(s.pre) == 0 {
+		if s.eof {
+			return 0, io.EOF
+		}
+		return s.src.ReadFrames(dst)
+	}
+	n := copy(dst[:len(dst)/s.ch*s.ch], s.pre)
+	s.pre = s.pre[n:]
+	if len(s.pre) == 0 && s.eof {
 		return n / s.ch, io.EOF
 	}
 	return n / s.ch, nil

@@ -122,6 +122,49 @@ func TestZeroPhaseSpillBitForBit(t *testing.T) {
 	}
 }
 
+// TestZeroPhaseSpillSegments shrinks the memory step and the file
+// segments so that a short signal goes through many of them (memory
+// then file, buffers read ahead and written behind), and checks the
+// result bit for bit against ZeroPhaseSlice.
+func TestZeroPhaseSpillSegments(t *testing.T) {
+	r := loadRefs(t)
+	tc := r.Cases[0]
+	savedStep, savedIO := spillStep, spillIOBytes
+	defer func() { spillStep, spillIOBytes = savedStep, savedIO }()
+	spillStep = 64
+	for _, c := range []struct {
+		name          string
+		ioBytes       int
+		mem           int64 // SpillMemoryBytes
+		block, frames int
+	}{
+		{"file only, many segments", 8 * 2 * 50, -1, 77, r.Frames},
+		{"memory then file", 8 * 2 * 64, 8 * 64 * 5, 30, r.Frames},
+		{"segment longer than block", 8 * 2 * 200, 8 * 64 * 3, 7, r.Frames},
+		{"last segment whole", 8 * 2 * 128, -1, 128, r.Frames},
+		{"all in memory", 8 * 2 * 64, 8 * 64 * 100, 100, r.Frames},
+		{"short", 8 * 2 * 16, 8 * 64, 5, 100},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			spillIOBytes = c.ioBytes
+			x := r.Signal[:2*c.frames]
+			cfg := Config{Channels: 2}
+			opt := ZeroPhaseOptions{PadFrames: 60, BlockFrames: c.block, SpillMemoryBytes: c.mem}
+			want, _, err := ZeroPhaseSlice(nil, x, tc.Sections, cfg, opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got, _ := spill(t, x, tc.Sections, cfg, opt, 5)
+			if len(got) != len(want) {
+				t.Fatalf("got %d samples, want %d", len(got), len(want))
+			}
+			if d, at := maxAbsDiff(got, want); d != 0 {
+				t.Errorf("differs by %g at %d", d, at)
+			}
+		})
+	}
+}
+
 // TestZeroPhaseIsZeroPhase: a symmetric pulse in the middle of silence
 // comes out symmetric, and its cross-correlation with the input peaks
 // at lag 0 (the forward-backward response is |H|^2, real and even:
