@@ -45,6 +45,17 @@ const (
 	// process sizes its zero-phase padding (80 dB, below the quantisation
 	// of 16-bit audio relative to the signal).
 	VerifyDecayDB = 80
+	// VerifyFailCoherence is the least coherence at which a reading that
+	// puts the gain above a limit or above the design fails the check.
+	// Below it the output at that frequency is mostly noise uncorrelated
+	// with the input, and the confidence region of H1 (derived for a
+	// known coherence) is too optimistic: with no true transfer at all,
+	// the estimated coherence of K independent segments exceeds c with
+	// probability (1 - c)^(K-1) (Carter, Knapp & Nuttall, IEEE Trans.
+	// Audio Electroacoust. 21, 1973; cited from memory), which at 0.15
+	// and 29 segments is 1%, but at 0.5 under 1e-8. Such a reading is
+	// reported unmeasurable instead.
+	VerifyFailCoherence = 0.5
 	// verifyEdgeGuardBins keeps an edge's measurement this many bins inside
 	// its band, so that the main lobe of the Blackman-Harris window (four
 	// bins each side of the centre; Harris 1978, table 1) stays in the band
@@ -266,8 +277,9 @@ func VerifySkipFrames(f *design.Filter) int {
 // narrowest transition band, verifyNotchBins across a notch, verifyLowBins
 // below the lowest point and verifyDelayFactor times the largest group
 // delay at the points (causal runs), but no longer than leaves
-// verifyMinSegments half-overlapped segments in n. Checks that this length
-// cannot resolve are reported as such.
+// verifyMinSegments half-overlapped segments in n, and no shorter than
+// 256. Checks that this length cannot resolve are reported as such; a
+// signal of fewer than VerifyMinFrames(segment) frames is too short.
 func VerifySegment(f *design.Filter, pts []VerifyPoint, n int64) int {
 	fs := f.SampleRate
 	want := float64(verifyMinSegment)
@@ -295,8 +307,13 @@ func VerifySegment(f *design.Filter, pts []VerifyPoint, n int64) int {
 	seg := ceilPow2(int64(math.Min(want, verifyMaxSegment)))
 	limit := floorPow2(2 * n / (verifyMinSegments + 1))
 	seg = min(seg, limit)
-	return int(max(seg, 8))
+	return int(max(seg, verifyMinSegment))
 }
+
+// VerifyMinFrames is the shortest signal, after the skipped transients,
+// that a verification with this segment length accepts: four
+// half-overlapped segments.
+func VerifyMinFrames(segment int) int64 { return int64(segment) * 5 / 2 }
 
 func ceilPow2(v int64) int64 {
 	if v <= 1 {
@@ -443,9 +460,14 @@ func Verify(f *design.Filter, e *Estimator, tr *Transfer, pts []VerifyPoint, cha
 		r.FloorDB = num(floor)
 		ciLo, ciHi := tp.GainLowDB, tp.GainHighDB
 
-		var fails []string
-		if ciHi < lo-VerifyTolDB || ciLo > hi+VerifyTolDB {
+		// fails collects what the reading shows conclusively; high holds
+		// the claims that the gain is too high, which need coherence.
+		var fails, high []string
+		if ciHi < lo-VerifyTolDB {
 			fails = append(fails, fmt.Sprintf("measured %.2f dB (%s) where the design gives %s", m, ciText(ciLo, ciHi), rangeText(lo, hi)))
+		}
+		if ciLo > hi+VerifyTolDB {
+			high = append(high, fmt.Sprintf("measured %.2f dB (%s) where the design gives %s", m, ciText(ciLo, ciHi), rangeText(lo, hi)))
 		}
 		target := hi
 		if p.HasLimit {
@@ -453,7 +475,7 @@ func Verify(f *design.Filter, e *Estimator, tr *Transfer, pts []VerifyPoint, cha
 			if p.Upper {
 				r.MarginDB = num(lim - m)
 				if ciLo > lim+VerifyTolDB {
-					fails = append(fails, fmt.Sprintf("above the limit of %.2f dB by %.2f dB beyond the interval", lim, ciLo-lim))
+					high = append(high, fmt.Sprintf("above the limit of %.2f dB by %.2f dB beyond the interval", lim, ciLo-lim))
 				}
 			} else {
 				r.MarginDB = num(m - lim)
@@ -464,10 +486,16 @@ func Verify(f *design.Filter, e *Estimator, tr *Transfer, pts []VerifyPoint, cha
 		} else {
 			r.MarginDB = num(math.Min(m-(lo-VerifyTolDB), (hi+VerifyTolDB)-m))
 		}
+		if tp.Coherence >= VerifyFailCoherence {
+			fails = append(fails, high...)
+		}
 		switch {
 		case len(fails) > 0:
 			r.Verdict = VerdictFail
 			r.Reason = joinReasons(fails)
+		case len(high) > 0:
+			r.Verdict = VerdictUnmeasurable
+			r.Reason = fmt.Sprintf("not measurable below %.1f dB: the reading (%.2f dB) lies above the design or the limit, but at coherence %.3g the output here is mostly noise uncorrelated with the input, and such a reading can come from noise alone", math.Max(floor, m), m, tp.Coherence)
 		case floor > target-VerifySeeBelowDB:
 			r.Verdict = VerdictUnmeasurable
 			nout := tr.Pyy[k] * math.Max(0, 1-tp.Coherence)

@@ -103,6 +103,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")
 	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "let NaN and infinite float samples through instead of refusing the file")
 	fs.BoolVar(&o.noProgress, "no-progress", false, "no progress display on a terminal")
+	verifyRuns := fs.Bool("verify", false, "measure every file written against the spec (as wavsieve verify) and record the verdicts in the manifest")
 	help := fs.BoolP("help", "h", false, "show this help")
 	if err := fs.Parse(args); err != nil {
 		return report(stderr, "apply", usagef("%v", err), "")
@@ -168,7 +169,11 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
 
-	m := manifest{Files: results, Spec: spec, Workers: o.workers, Shard: o.shard}
+	var verified []*verifyReport
+	if *verifyRuns && ctx.Err() == nil {
+		verified = verifyApplied(results, spec, tmpl.Only, stderr)
+	}
+	m := manifest{Files: manifestFiles(results, verified), Spec: spec, Workers: o.workers, Shard: o.shard}
 	base := o.manifest
 	if base == "" {
 		dir := popt.OutputDir
@@ -205,7 +210,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "wavsieve apply: interrupted; no partial outputs were left")
 		return exitFail
 	}
-	if failed > 0 {
+	if failed > 0 || !verifiedPass(verified) {
 		return exitFail
 	}
 	return exitOK
@@ -305,7 +310,7 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 	if asJSON {
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", " ")
-		enc.Encode(manifest{Files: files, Spec: tmpl.Spec, DryRun: true})
+		enc.Encode(manifest{Files: manifestFiles(files, nil), Spec: tmpl.Spec, DryRun: true})
 	} else {
 		for _, r := range files {
 			fmt.Fprintf(stdout, "%s -> %s\n", r.Input, r.Output)
@@ -346,11 +351,11 @@ func stageLine(s process.StageSummary) string {
 
 // manifest is the record of a run.
 type manifest struct {
-	Files   []process.FileResult `json:"files"`
-	Spec    any                  `json:"spec"`
-	Workers int                  `json:"workers,omitempty"`
-	Shard   string               `json:"shard,omitempty"`
-	DryRun  bool                 `json:"dry_run,omitempty"`
+	Files   []manifestFile `json:"files"`
+	Spec    any            `json:"spec"`
+	Workers int            `json:"workers,omitempty"`
+	Shard   string         `json:"shard,omitempty"`
+	DryRun  bool           `json:"dry_run,omitempty"`
 }
 
 var csvHeader = []string{"input", "output", "status", "error", "sample_rate_hz", "channels", "frames", "duration_s", "format", "output_format", "zero_phase", "design", "peak_in_dbfs", "peak_out_dbfs", "clipped_samples", "dither_seed", "seconds"}

@@ -95,6 +95,9 @@ type verifyReport struct {
 	Failed          int                   `json:"failed"`
 	Unmeasurable    int                   `json:"unmeasurable"`
 	Note            string                `json:"note"`
+	// Error says why a file apply --verify was asked to verify could not
+	// be measured.
+	Error string `json:"error,omitempty"`
 
 	filter *design.Filter
 }
@@ -358,8 +361,8 @@ func verifyPair(spec design.Spec, in, out string, only []int, segment int) (*ver
 	if seg == 0 {
 		seg = analyze.VerifySegment(f, pts, usable)
 	}
-	if usable < int64(seg) {
-		return nil, fmt.Errorf("%s: too short to verify: %d frames, of which %d at each end are the filter's transients, and a segment of %d is needed", in, frames, skip, seg)
+	if need := analyze.VerifyMinFrames(seg); usable < need {
+		return nil, fmt.Errorf("%s: too short to verify: %d frames, of which %d at each end are the filter's transients, and %d more are needed for four segments of %d", in, frames, skip, need, seg)
 	}
 	est, err := analyze.VerifyEstimator(float64(fi.SampleRate), seg)
 	if err != nil {
@@ -650,4 +653,58 @@ func writeVerifyPlot(name string, r *verifyReport) error {
 		return err
 	}
 	return writeFileAtomic(name, buf.Bytes())
+}
+
+// manifestFile is one file of apply's manifest: its result and, with
+// apply --verify, the verification of its output.
+type manifestFile struct {
+	process.FileResult
+	Verify *verifyReport `json:"verify,omitempty"`
+}
+
+// manifestFiles pairs the results with their verifications (v may be nil
+// or hold nil for files not verified).
+func manifestFiles(rs []process.FileResult, v []*verifyReport) []manifestFile {
+	out := make([]manifestFile, len(rs))
+	for i, r := range rs {
+		out[i].FileResult = r
+		if i < len(v) {
+			out[i].Verify = v[i]
+		}
+	}
+	return out
+}
+
+// verifyApplied verifies the output of every file done, as wavsieve
+// verify would, and reports failures and errors on stderr. A file that
+// cannot be measured (too short, say) gets a report without checks that
+// does not pass, with the reason in Error.
+func verifyApplied(rs []process.FileResult, spec design.Spec, only []int, stderr io.Writer) []*verifyReport {
+	out := make([]*verifyReport, len(rs))
+	for i, r := range rs {
+		if r.Status != process.StatusDone {
+			continue
+		}
+		rep, err := verifyPair(spec, r.Input, r.Output, only, 0)
+		if err != nil {
+			rep = &verifyReport{Input: r.Input, Output: r.Output, Checks: []analyze.CheckResult{}, Note: verifyNote, Error: err.Error()}
+			fmt.Fprintf(stderr, "wavsieve apply: verify: %v\n", err)
+		} else if !rep.Pass {
+			fmt.Fprintf(stderr, "wavsieve apply: verify: %s: %d of %d checks failed (see the manifest, or run wavsieve verify for the table)\n", r.Output, rep.Failed, len(rep.Checks))
+		} else {
+			fmt.Fprintf(stderr, "wavsieve apply: verify: %s: %d passed, %d unmeasurable\n", r.Output, rep.Passed, rep.Unmeasurable)
+		}
+		out[i] = rep
+	}
+	return out
+}
+
+// verifiedPass reports whether every verification made passed.
+func verifiedPass(v []*verifyReport) bool {
+	for _, r := range v {
+		if r != nil && !r.Pass {
+			return false
+		}
+	}
+	return true
 }

@@ -1,0 +1,253 @@
+package main
+
+import (
+	"encoding/json"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/wavsieve/wavsieve/process/wavio"
+)
+
+// writeNoiseWAV writes white Gaussian noise at 0.1 FS rms (-20 dBFS) as
+// 16-bit PCM.
+func writeNoiseWAV(t *testing.T, name string, rate, ch int, seconds float64, seed uint64) {
+	t.Helper()
+	w, err := wavio.Create(name, wavio.WriterOptions{Format: wavio.Format{SampleRate: rate, Channels: ch, Bits: 16, Encoding: wavio.PCM}, DitherSeed: seed})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := rand.New(rand.NewPCG(seed, 5))
+	buf := make([]float64, int(seconds*float64(rate))*ch)
+	for i := range buf {
+		buf[i] = 0.1 * r.NormFloat64()
+	}
+	if err := w.WriteFrames(buf); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// The spec of these tests: an elliptic low-pass at 8 kHz, 0.5 dB to 1 kHz,
+// 60 dB from 1.3 kHz (minimum order 5).
+var lowpassSpec = []string{"--family", "elliptic", "--response", "lowpass", "--passband", "1000", "--stopband", "1300", "--ripple", "0.5", "--attenuation", "60"}
+
+type verifyJSON struct {
+	Pass   *bool                        `json:"pass"`
+	Checks []map[string]json.RawMessage `json:"checks"`
+	Files  []struct {
+		Probe bool `json:"probe"`
+	} `json:"files"`
+}
+
+func decodeVerify(t *testing.T, out string) verifyJSON {
+	t.Helper()
+	var v verifyJSON
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatalf("not JSON: %v\n%s", err, out)
+	}
+	if v.Pass == nil {
+		t.Fatal(`no "pass" key`)
+	}
+	if len(v.Checks) == 0 {
+		t.Fatal("no checks")
+	}
+	// The keys of the verify document in the design notes.
+	for _, c := range v.Checks {
+		for _, k := range []string{"frequency_hz", "kind", "designed_db", "measured_db", "limit_db", "margin_db", "verdict"} {
+			if _, ok := c[k]; !ok {
+				t.Fatalf("check without %q: %v", k, c)
+			}
+		}
+	}
+	return v
+}
+
+func verdicts(v verifyJSON) map[string]int {
+	n := map[string]int{}
+	for _, c := range v.Checks {
+		var s string
+		json.Unmarshal(c["verdict"], &s)
+		n[s]++
+	}
+	return n
+}
+
+func applyTo(t *testing.T, in, out string, extra ...string) {
+	t.Helper()
+	code, _, errs := runCmd(t, append(append([]string{"apply", "--no-progress", "--dither-seed", "9", "--output", out}, extra...), in)...)
+	if code != exitOK {
+		t.Fatalf("apply: exit %d: %s", code, errs)
+	}
+}
+
+func TestVerifyRightAndWrongFilters(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	writeNoiseWAV(t, in, 8000, 1, 8, 1)
+	cases := []struct {
+		name   string
+		filter []string // what apply ran
+		want   int
+	}{
+		{"the spec's filter passes", lowpassSpec, exitOK},
+		{"a lower order fails", []string{"--family", "elliptic", "--response", "lowpass", "--order", "3", "--cutoff", "1000", "--ripple", "0.5", "--attenuation", "60"}, exitFail},
+		{"a shifted cutoff fails", []string{"--family", "elliptic", "--response", "lowpass", "--passband", "1150", "--stopband", "1450", "--ripple", "0.5", "--attenuation", "60"}, exitFail},
+	}
+	for i, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			out := filepath.Join(dir, "out"+string(rune('a'+i))+".wav")
+			applyTo(t, in, out, c.filter...)
+			code, stdout, stderr := runCmd(t, append([]string{"verify", "--input", in, "--output", out, "--json"}, lowpassSpec...)...)
+			if code != c.want {
+				t.Fatalf("exit %d, want %d; stderr %s\n%s", code, c.want, stderr, stdout)
+			}
+			v := decodeVerify(t, stdout)
+			n := verdicts(v)
+			if *v.Pass != (c.want == exitOK) || (c.want == exitOK) != (n["fail"] == 0) {
+				t.Fatalf("pass %v with verdicts %v", *v.Pass, n)
+			}
+			if c.want == exitOK && n["pass"] != len(v.Checks) {
+				t.Fatalf("verdicts %v: noise covers every check, all should pass", n)
+			}
+		})
+	}
+}
+
+func TestVerifyUnmeasurableBelowDitherFloor(t *testing.T) {
+	dir := t.TempDir()
+	in, out := filepath.Join(dir, "in.wav"), filepath.Join(dir, "out.wav")
+	writeNoiseWAV(t, in, 8000, 1, 8, 2)
+	// 130 dB of stopband written to 16 bits: the dither floor (about
+	// -140 dBFS^2/Hz against -63.8 dBFS^2/Hz of input) hides it.
+	deep := []string{"--family", "elliptic", "--response", "lowpass", "--passband", "1000", "--stopband", "1300", "--ripple", "0.5", "--attenuation", "130"}
+	applyTo(t, in, out, deep...)
+	code, stdout, stderr := runCmd(t, append([]string{"verify", "--input", in, "--output", out}, deep...)...)
+	if code != exitOK {
+		t.Fatalf("exit %d (unmeasurable checks must not fail the run): %s\n%s", code, stderr, stdout)
+	}
+	for _, want := range []string{"unmeasurable", "not measurable below", "not a calibrated certification", "Result: PASS"} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("table lacks %q:\n%s", want, stdout)
+		}
+	}
+	for _, line := range strings.Split(stdout, "\n") {
+		f := strings.Fields(line)
+		if len(f) > 3 && (f[2] == "stopband" || f[2] == "stopband-edge") && f[len(f)-1] != "unmeasurable" {
+			t.Errorf("stopband check not unmeasurable: %s", line)
+		}
+	}
+}
+
+func TestVerifyZeroPhaseDoubling(t *testing.T) {
+	dir := t.TempDir()
+	in, out := filepath.Join(dir, "in.wav"), filepath.Join(dir, "out.wav")
+	writeNoiseWAV(t, in, 8000, 1, 8, 3)
+	bw := []string{"--family", "butterworth", "--response", "lowpass", "--order", "4", "--cutoff", "1000"}
+	applyTo(t, in, out, append(bw, "--zero-phase")...)
+	// Checked against the squared design (-6.02 dB at the cutoff) the run
+	// passes; as if causal (-3.01 dB) its cutoff reads 3 dB low and fails.
+	if code, stdout, stderr := runCmd(t, append([]string{"verify", "--input", in, "--output", out, "--zero-phase"}, bw...)...); code != exitOK {
+		t.Fatalf("zero-phase run as zero-phase: exit %d: %s\n%s", code, stderr, stdout)
+	}
+	code, stdout, _ := runCmd(t, append([]string{"verify", "--input", in, "--output", out, "--json"}, bw...)...)
+	if code != exitFail {
+		t.Fatalf("zero-phase run as causal: exit %d\n%s", code, stdout)
+	}
+	v := decodeVerify(t, stdout)
+	cutFail := false
+	for _, c := range v.Checks {
+		var kind, verdict string
+		json.Unmarshal(c["kind"], &kind)
+		json.Unmarshal(c["verdict"], &verdict)
+		cutFail = cutFail || kind == "cutoff" && verdict == "fail"
+	}
+	if !cutFail {
+		t.Fatalf("the cutoff check did not fail: %s", stdout)
+	}
+}
+
+func TestVerifyProbe(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	writeNoiseWAV(t, in, 8000, 2, 0.5, 4)
+	for _, args := range [][]string{{"--input", in}, {"--rate", "8000"}} {
+		code, stdout, stderr := runCmd(t, append(append([]string{"verify", "--probe", "--json"}, args...), lowpassSpec...)...)
+		if code != exitOK {
+			t.Fatalf("%v: exit %d: %s", args, code, stderr)
+		}
+		v := decodeVerify(t, stdout)
+		if len(v.Files) != 1 || !v.Files[0].Probe {
+			t.Fatalf("%v: not a probe report", args)
+		}
+		if n := verdicts(v); n["pass"] != len(v.Checks) {
+			t.Fatalf("%v: verdicts %v", args, n)
+		}
+	}
+}
+
+func TestApplyVerifyRecordsVerdicts(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	writeNoiseWAV(t, in, 8000, 1, 8, 5)
+	outDir := filepath.Join(dir, "out")
+	applyTo(t, filepath.Join(dir, "in.wav"), outDir, append([]string{"--verify"}, lowpassSpec...)...)
+	b, err := os.ReadFile(filepath.Join(outDir, "wavsieve-manifest.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m struct {
+		Files []struct {
+			Verify *verifyJSON `json:"verify"`
+		} `json:"files"`
+	}
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Files) != 1 || m.Files[0].Verify == nil || m.Files[0].Verify.Pass == nil || !*m.Files[0].Verify.Pass || len(m.Files[0].Verify.Checks) == 0 {
+		t.Fatalf("manifest verify entry: %s", b)
+	}
+	code, stdout, stderr := runCmd(t, "verify", "--manifest", filepath.Join(outDir, "wavsieve-manifest.json"), "--plot", filepath.Join(dir, "v.svg"))
+	if code != exitOK {
+		t.Fatalf("verify --manifest: exit %d: %s\n%s", code, stderr, stdout)
+	}
+	svg, err := os.ReadFile(filepath.Join(dir, "v.svg"))
+	if err != nil || !strings.Contains(string(svg), "<svg") {
+		t.Fatalf("plot not written: %v", err)
+	}
+}
+
+func TestVerifyErrors(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	writeNoiseWAV(t, in, 8000, 1, 0.1, 6)
+	cases := []struct {
+		name   string
+		args   []string
+		code   int
+		stderr string
+	}{
+		{"no files", lowpassSpec, exitUsage, "Run 'wavsieve verify --help'"},
+		{"no spec", []string{"--input", in, "--output", in}, exitUsage, "no filter given"},
+		{"missing output", append([]string{"--input", in, "--output", filepath.Join(dir, "none.wav")}, lowpassSpec...), exitFail, "none.wav"},
+		{"too short", append([]string{"--input", in, "--output", in}, lowpassSpec...), exitFail, "too short to verify"},
+		{"bad plot name", append([]string{"--input", in, "--output", in, "--plot", "x.pdf"}, lowpassSpec...), exitUsage, "--plot"},
+		{"bad segment", append([]string{"--input", in, "--output", in, "--segment", "1000"}, lowpassSpec...), exitUsage, "power of two"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, stdout, stderr := runCmd(t, append([]string{"verify"}, c.args...)...)
+			if code != c.code || !strings.Contains(stderr, c.stderr) {
+				t.Fatalf("exit %d, stderr %q; want %d and %q\n%s", code, stderr, c.code, c.stderr, stdout)
+			}
+		})
+	}
+	code, stdout, _ := runCmd(t, "verify", "--help")
+	if code != exitOK || !strings.Contains(stdout, "not a calibrated certification") || !strings.Contains(stdout, "--probe") {
+		t.Fatalf("help: exit %d\n%s", code, stdout)
+	}
+}
