@@ -288,3 +288,21 @@ func describeChecks(res []CheckResult) []string {
 func ftoa(v float64) string { return fmtG(v) }
 
 func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', 5, 64) }
+
+func TestVerifyNarrowNotchNotFailed(t *testing.T) {
+	const rate = 8000
+	// 2 Hz notches at 50, 100 and 150 Hz: a 2^14-frame signal gives bins
+	// several Hz apart (too coarse), a 2^19-frame one fine enough.
+	notch := mustDesign(t, design.Spec{Stages: []design.Stage{{Family: "notch", FundamentalHz: 50, Harmonics: 3, BandwidthHz: 2}}}, rate)
+	for _, n := range []int{1 << 14, 1 << 19} {
+		x := quantise16(noise(n+2*VerifySkipFrames(notch), 0.1, 31), 32)
+		res := verifyRun(t, notch, x, quantise16(filterWith(t, notch, x), 33))
+		c := count(res)
+		if c[VerdictFail] != 0 {
+			t.Fatalf("%d frames: verdicts %v: %v", n, c, describeChecks(res))
+		}
+		if n == 1<<19 && c[VerdictPass] < 6 {
+			t.Fatalf("%d frames: the notch edges should be resolved: %v", n, describeChecks(res))
+		}
+	}
+}

@@ -53,7 +53,8 @@ design, zero-phase or not, output format and dither) in a temporary folder,
 and measured. Use it where a recording has no energy at an edge.
 
 --manifest takes the spec and the files from the manifest apply wrote, and
-verifies every file it records as done (or only --input's entry).
+verifies every file it records as done (or only --input's entry); the
+paths are as apply recorded them, so run verify from where apply ran.
 
 This is a measurement of the given files, not a calibrated certification.
 
