@@ -36,6 +36,7 @@ func commands() []command {
 		{"apply", "filter WAV files and folders, each at its own sample rate", runApply},
 		{"spectrum", "estimate the power spectrum of a WAV file, or compare two", runSpectrum},
 		{"verify", "measure a filtering run and check it against the spec", runVerify},
+		{"survey", "measure mains hum, drift, rumble and clipping, and suggest a filter", runSurvey},
 		{"report", "make a self-contained HTML report of an apply run or a survey", runReport},
 	}
 }
