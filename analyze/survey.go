@@ -719,9 +719,15 @@ func (s *Surveyor) Result() *Survey {
 		cs.RMSDBFS = dbAmp(cs.RMS)
 		sv.Stats = append(sv.Stats, cs)
 	}
-	if s.short || s.blocks == 0 {
-		sv.Notes = append(sv.Notes, fmt.Sprintf("too short for the hum and rumble survey: it needs a block of at least %g s", surveyMinSeconds))
+	switch {
+	case s.short:
+		sv.Notes = append(sv.Notes, fmt.Sprintf("no hum or rumble survey: blocks of %d samples are too short; they need %g s and 64 samples at least", s.blockLen, surveyMinSeconds))
 		return sv
+	case s.blocks == 0:
+		sv.Notes = append(sv.Notes, fmt.Sprintf("no hum or rumble survey: the signal is shorter than one block of %g s; survey it with shorter blocks", float64(s.stride)/s.o.SampleRate))
+		return sv
+	case len(s.cands) == 0:
+		sv.Notes = append(sv.Notes, fmt.Sprintf("no hum survey: the sample rate %g Hz is too low for 50 or 60 Hz and a floor beside it", s.o.SampleRate))
 	}
 	sv.Hum = s.hum()
 	sv.Rumble = s.rumble()
