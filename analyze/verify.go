@@ -443,6 +443,35 @@ func Verify(f *design.Filter, e *Estimator, tr *Transfer, pts []VerifyPoint, cha
 			lo, hi = math.Min(lo, v+bias), math.Max(hi, v)
 		}
 		r.ExpectedDB, r.ExpectedLowDB, r.ExpectedHighDB = num(exp), num(lo), num(hi)
+		// H1 at a bin is the response averaged over the window's main lobe
+		// (four bins each side for Blackman-Harris; Harris 1978, table 1),
+		// weighted by the input's spectrum there: a strong input line where
+		// the design dips (a hum notch beside a passband point) pulls the
+		// reading toward the dip. lobeLo and lobeHi bound what the design
+		// can make of the reading; a verdict that only the lobe could
+		// explain is no verdict.
+		lobeLo, lobeHi := lo, hi
+		for d := -float64(verifyEdgeGuardBins); d <= verifyEdgeGuardBins; d += 0.25 {
+			hz := fm + d*df
+			if !(hz > 0 && hz < o.SampleRate/2) {
+				continue
+			}
+			v := f.EffectiveDB(hz)
+			lobeLo, lobeHi = math.Min(lobeLo, v+bias), math.Max(lobeHi, v)
+		}
+		// Zeros on or next to the unit circle (notches, elliptic stopband
+		// zeros) are narrower than that grid: take them too.
+		for _, st := range f.Stages {
+			for _, z := range st.ZPK.Zeros {
+				if cmplx.Abs(z) < 0.999 {
+					continue
+				}
+				hz := math.Abs(cmplx.Phase(z)) * o.SampleRate / (2 * math.Pi)
+				if math.Abs(hz-fm) <= verifyEdgeGuardBins*df && hz > 0 && hz < o.SampleRate/2 {
+					lobeLo = math.Min(lobeLo, f.EffectiveDB(hz)+bias)
+				}
+			}
+		}
 		var lim float64
 		if p.HasLimit {
 			one := &design.Filter{SampleRate: f.SampleRate, ZeroPhase: f.ZeroPhase, Stages: []design.Designed{f.Stages[p.Stage]}}
@@ -503,7 +532,15 @@ func Verify(f *design.Filter, e *Estimator, tr *Transfer, pts []VerifyPoint, cha
 		if tp.Coherence >= VerifyFailCoherence {
 			fails = append(fails, high...)
 		}
+		// Only a deep feature in the lobe (beyond VerifyMaxSpreadDB of the
+		// local range) can pull the reading that far; a smooth response
+		// weighted by a smooth input spectrum reads close to its centre.
+		deep := lobeLo < lo-VerifyMaxSpreadDB || lobeHi > hi+VerifyMaxSpreadDB
+		pulled := deep && len(fails) > 0 && ciHi >= lobeLo-VerifyTolDB && ciLo <= lobeHi+VerifyTolDB
 		switch {
+		case pulled:
+			r.Verdict = VerdictUnmeasurable
+			r.Reason = fmt.Sprintf("not measurable at this resolution: within the window's main lobe (%.4g Hz each side) the design spans %s, and the input's energy there can pull the reading (%.2f dB) anywhere in that range; a longer recording (or --probe) allows a longer segment", verifyEdgeGuardBins*df, rangeText(lobeLo, lobeHi), m)
 		case len(fails) > 0:
 			r.Verdict = VerdictFail
 			r.Reason = joinReasons(fails)
