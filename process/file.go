@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"strings"
+	"sync/atomic"
 	"time"
 
 	"github.com/wavsieve/wavsieve/design"
@@ -39,7 +40,8 @@ type FileJob struct {
 	AllowNonFinite bool
 	// BlockFrames is the processing block; 0 means 8192.
 	BlockFrames int
-	// Progress, if set, is called after each block with the frames done.
+	// Progress, if set, is called after each block with the frames done,
+	// from the goroutine that reads the input.
 	Progress func(done, total int64)
 }
 
@@ -154,26 +156,40 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 			return res, fmt.Errorf("%s: bext: %w", job.Output, err)
 		}
 	}
-	src := &peakSource{ctx: ctx, r: r, peak: make([]float64, inF.Channels), ch: inF.Channels, total: res.Frames, progress: job.Progress}
-	dst := &peakSink{w: w, peak: make([]float64, inF.Channels), ch: inF.Channels}
+	// The input is read and decoded on one goroutine, a few blocks
+	// ahead, and the output encoded and written on another, a few
+	// blocks behind: the filtering in between sees the same blocks in
+	// the same order, so the output is the same.
+	src := &peakSource{ctx: ctx, r: r, peak: make([]float64, inF.Channels), total: res.Frames, progress: job.Progress}
+	dst := &peakSink{w: w, peak: make([]float64, inF.Channels)}
 	cfg := Config{Channels: inF.Channels, Only: job.Only, SteadyStart: job.SteadyStart}
 	block := job.BlockFrames
 	if block <= 0 {
 		block = defaultBlockFrames
 	}
+	ra := newReadAhead(src, inF.Channels, block)
+	defer ra.close()
 	if job.Spec.ZeroPhase {
 		opt := zeroPhaseOptions(filt, res.Frames, block)
 		opt.TempDir = job.TempDir
 		if opt.TempDir == "" {
 			opt.TempDir = dirOf(job.Output)
 		}
-		rep, zerr := ZeroPhase(dst, src, filt.Sections(), cfg, opt)
+		wb := newWriteBehind(dst, inF.Channels, block, nil)
+		rep, zerr := ZeroPhase(wb, ra, filt.Sections(), cfg, opt)
+		werr := wb.close()
+		ra.close()
 		if zerr != nil {
 			return res, fmt.Errorf("%s: %w", job.Input, firstErr(src.err, zerr))
 		}
+		if werr != nil {
+			return res, fmt.Errorf("%s: %w", job.Input, werr)
+		}
 		res.PadFrames, res.EdgeTransient = rep.PadFrames, rep.TransientFrames
 	} else {
-		if err := causal(dst, src, filt.Sections(), cfg, block); err != nil {
+		err := causal(dst, ra, filt.Sections(), cfg)
+		ra.close()
+		if err != nil {
 			return res, fmt.Errorf("%s: %w", job.Input, err)
 		}
 	}
@@ -216,29 +232,207 @@ func zeroPhaseOptions(f *design.Filter, frames int64, block int) ZeroPhaseOption
 	return opt
 }
 
-// causal streams src through the cascade into dst.
-func causal(dst FrameSink, src FrameSource, sos []design.Section, cfg Config, block int) error {
+// causal streams the blocks of src through the cascade into dst, in
+// place: each block goes from the reading goroutine to the filter and
+// on to the writing goroutine, which hands it back to the reader.
+func causal(dst FrameSink, src *readAhead, sos []design.Section, cfg Config) error {
 	c, err := NewCascade(sos, cfg)
 	if err != nil {
 		return err
 	}
-	buf := make([]float64, block*cfg.Channels)
+	wb := newWriteBehind(dst, cfg.Channels, 0, src.free)
 	for {
-		n, rerr := src.ReadFrames(buf)
-		if n > 0 {
-			p := buf[:n*cfg.Channels]
+		p, rerr := src.next()
+		if len(p) > 0 {
 			c.Process(p, p)
-			if err := dst.WriteFrames(p); err != nil {
-				return err
+			if err := wb.put(p); err != nil {
+				break // wb.close reports it
 			}
+		} else if p != nil {
+			src.free <- p[:cap(p)]
 		}
 		if rerr != nil {
+			if werr := wb.close(); werr != nil {
+				return werr
+			}
 			if errors.Is(rerr, io.EOF) {
 				return nil
 			}
 			return rerr
 		}
 	}
+	return wb.close()
+}
+
+// aheadBlocks is the number of blocks in flight between the goroutines
+// of a file run.
+const aheadBlocks = 4
+
+// readAhead reads a FrameSource on its own goroutine into aheadBlocks
+// blocks and hands them over in order, through next (the block itself)
+// or ReadFrames (a copy). close stops the goroutine; only then may the
+// source be closed or its fields read.
+type readAhead struct {
+	ch     int
+	free   chan []float64 // empty blocks, full length
+	full   chan aheadBlock
+	stop   chan struct{}
+	exited chan struct{}
+	cur    []float64 // block being read by ReadFrames
+	off    int
+	err    error // error that came with the last block
+	closed bool
+}
+
+type aheadBlock struct {
+	p   []float64
+	err error
+}
+
+func newReadAhead(src FrameSource, ch, block int) *readAhead {
+	r := &readAhead{
+		ch:     ch,
+		free:   make(chan []float64, aheadBlocks),
+		full:   make(chan aheadBlock, aheadBlocks),
+		stop:   make(chan struct{}),
+		exited: make(chan struct{}),
+	}
+	for range aheadBlocks {
+		r.free <- make([]float64, block*ch)
+	}
+	go func() {
+		defer close(r.exited)
+		for {
+			var p []float64
+			select {
+			case p = <-r.free:
+			case <-r.stop:
+				return
+			}
+			n, err := src.ReadFrames(p)
+			r.full <- aheadBlock{p[:n*ch], err} // never blocks: room for every block
+			if err != nil {
+				return
+			}
+		}
+	}()
+	return r
+}
+
+// next returns the next block (nil after the source's error) and the
+// error the source returned with it. The caller owns the block until it
+// sends it, full length, to r.free.
+func (r *readAhead) next() ([]float64, error) {
+	if r.err != nil {
+		return nil, r.err
+	}
+	b := <-r.full
+	r.err = b.err
+	return b.p, b.err
+}
+
+// ReadFrames copies the next frames into dst, as FrameSource.
+func (r *readAhead) ReadFrames(dst []float64) (int, error) {
+	for r.off == len(r.cur) {
+		if r.cur != nil {
+			r.free <- r.cur[:cap(r.cur)]
+			r.cur = nil
+		}
+		if r.err != nil {
+			return 0, r.err
+		}
+		p, err := r.next()
+		if len(p) == 0 && err == nil {
+			r.free <- p[:cap(p)]
+			continue
+		}
+		r.cur, r.off = p, 0
+	}
+	n := copy(dst[:len(dst)/r.ch*r.ch], r.cur[r.off:])
+	r.off += n
+	if r.off == len(r.cur) && r.err != nil {
+		return n / r.ch, r.err
+	}
+	return n / r.ch, nil
+}
+
+func (r *readAhead) close() {
+	if !r.closed {
+		r.closed = true
+		close(r.stop)
+		<-r.exited
+	}
+}
+
+// writeBehind writes to a FrameSink on its own goroutine. put hands a
+// block over; WriteFrames copies into blocks of its own. Written blocks
+// go, full length, to free. close waits for the writes and returns the
+// first error; after an error the remaining blocks are dropped.
+type writeBehind struct {
+	ch     int
+	full   chan []float64
+	free   chan []float64
+	exited chan struct{}
+	failed atomic.Bool
+	err    error // set before failed
+	closed bool
+}
+
+// newWriteBehind returns a writeBehind that sends written blocks to
+// free, or with free nil to a pool of aheadBlocks blocks of block
+// frames for WriteFrames.
+func newWriteBehind(dst FrameSink, ch, block int, free chan []float64) *writeBehind {
+	w := &writeBehind{ch: ch, full: make(chan []float64, aheadBlocks), free: free, exited: make(chan struct{})}
+	if free == nil {
+		w.free = make(chan []float64, aheadBlocks)
+		for range aheadBlocks {
+			w.free <- make([]float64, block*ch)
+		}
+	}
+	go func() {
+		defer close(w.exited)
+		for p := range w.full {
+			if !w.failed.Load() {
+				if err := dst.WriteFrames(p); err != nil {
+					w.err = err
+					w.failed.Store(true)
+				}
+			}
+			w.free <- p[:cap(p)]
+		}
+	}()
+	return w
+}
+
+func (w *writeBehind) put(p []float64) error {
+	if w.failed.Load() {
+		w.free <- p[:cap(p)]
+		return w.err
+	}
+	w.full <- p
+	return nil
+}
+
+func (w *writeBehind) WriteFrames(src []float64) error {
+	for len(src) > 0 {
+		if w.failed.Load() {
+			return w.err
+		}
+		p := <-w.free
+		n := copy(p, src)
+		w.full <- p[:n]
+		src = src[n:]
+	}
+	return nil
+}
+
+func (w *writeBehind) close() error {
+	if !w.closed {
+		w.closed = true
+		close(w.full)
+		<-w.exited
+	}
+	return w.err
 }
 
 // peakSource reads from a wavio.Reader, tracks each channel's peak,
@@ -247,7 +441,6 @@ type peakSource struct {
 	ctx      context.Context
 	r        *wavio.Reader
 	peak     []float64
-	ch       int
 	done     int64
 	total    int64
 	progress func(done, total int64)
@@ -260,11 +453,7 @@ func (p *peakSource) ReadFrames(dst []float64) (int, error) {
 		return 0, err
 	}
 	n, err := p.r.ReadFrames(dst)
-	for i, v := range dst[:n*p.ch] {
-		if a := math.Abs(v); a > p.peak[i%p.ch] {
-			p.peak[i%p.ch] = a
-		}
-	}
+	trackPeaks(p.peak, dst[:n*len(p.peak)])
 	p.done += int64(n)
 	if p.progress != nil {
 		p.progress(p.done, p.total)
@@ -278,16 +467,37 @@ func (p *peakSource) ReadFrames(dst []float64) (int, error) {
 type peakSink struct {
 	w    *wavio.Writer
 	peak []float64
-	ch   int
 }
 
 func (p *peakSink) WriteFrames(src []float64) error {
-	for i, v := range src {
-		if a := math.Abs(v); a > p.peak[i%p.ch] {
-			p.peak[i%p.ch] = a
+	trackPeaks(p.peak, src)
+	return p.w.WriteFrames(src)
+}
+
+// trackPeaks raises peak[k] to the largest |x| of channel k in the
+// interleaved frames of x (NaN is never larger).
+func trackPeaks(peak, x []float64) {
+	ch := len(peak)
+	if ch == 2 {
+		l, r := peak[0], peak[1]
+		for i := 0; i+1 < len(x); i += 2 {
+			if a := math.Abs(x[i]); a > l {
+				l = a
+			}
+			if a := math.Abs(x[i+1]); a > r {
+				r = a
+			}
+		}
+		peak[0], peak[1] = l, r
+		return
+	}
+	for i := 0; i+ch <= len(x); i += ch {
+		for k, v := range x[i : i+ch] {
+			if a := math.Abs(v); a > peak[k] {
+				peak[k] = a
+			}
 		}
 	}
-	return p.w.WriteFrames(src)
 }
 
 func dbfs(peak []float64) []float64 {
