@@ -44,8 +44,10 @@ type applyManifest struct {
 
 // verifyDoc is the verification document of one file.
 type verifyDoc struct {
-	Pass   bool `json:"pass"`
-	Checks []struct {
+	Pass        bool   `json:"pass"`
+	NotMeasured bool   `json:"not_measured"`
+	Error       string `json:"error"`
+	Checks      []struct {
 		FrequencyHz float64  `json:"frequency_hz"`
 		Kind        string   `json:"kind"`
 		DesignedDB  *float64 `json:"designed_db"`
@@ -72,7 +74,7 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 		return Report{}, fmt.Errorf("report: the manifest's spec: %w", err)
 	}
 	r := Report{Title: "wavsieve filtering report", Subtitle: fmt.Sprintf("%d files; spec: %s", len(m.Files), specSummary(spec))}
-	r.Table = Table{
+	t := Table{
 		Caption: "Run manifest (click a heading to sort)",
 		Columns: []string{"input", "output", "status", "rate (Hz)", "channels", "duration (s)", "peak in (dBFS)", "peak out (dBFS)", "clipped", "verified", "seconds", "error"},
 		Numeric: []bool{false, false, false, true, true, true, true, true, true, false, true, false},
@@ -81,16 +83,20 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 		verdict := ""
 		var vd verifyDoc
 		if len(f.Verify) > 0 && string(f.Verify) != "null" && json.Unmarshal(f.Verify, &vd) == nil {
-			verdict = "fail"
-			if vd.Pass {
+			switch {
+			case vd.NotMeasured:
+				verdict = "not measured"
+			case vd.Pass:
 				verdict = "pass"
+			default:
+				verdict = "fail"
 			}
 		}
-		r.Table.Rows = append(r.Table.Rows, []string{
+		t.Rows = append(t.Rows, []string{
 			f.Input, f.Output, f.Status, strconv.Itoa(f.SampleRate), strconv.Itoa(f.Channels), fmt.Sprintf("%.3f", f.DurationS),
 			fmtMax(f.PeakInDBFS), fmtMax(f.PeakOutDBFS), strconv.FormatInt(sumInts(f.Clipped), 10), verdict, fmt.Sprintf("%.2f", f.Seconds), f.Error,
 		})
-		r.Table.RowClass = append(r.Table.RowClass, f.Status)
+		t.RowClass = append(t.RowClass, f.Status)
 
 		sec := File{Heading: filepath.Base(f.Input), Status: f.Status}
 		if f.Status != "done" {
@@ -132,7 +138,10 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 				sec.Plots = append(sec.Plots, Plot{Caption: fmt.Sprintf("The filter as designed at this file's %d Hz rate: magnitude with the spec's forbidden areas, phase, group delay and poles and zeros.", f.SampleRate), SVG: b.Bytes()})
 			}
 		}
-		if verdict != "" {
+		if vd.Error != "" {
+			sec.Facts = append(sec.Facts, [2]string{"verification", vd.Error})
+		}
+		if verdict != "" && len(vd.Checks) > 0 {
 			t := Table{Caption: "Verification (measured transfer magnitude against the design and the spec): " + strings.ToUpper(verdict),
 				Columns: []string{"frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
 				Numeric: []bool{true, false, true, true, true, true, false, false}}
@@ -144,6 +153,7 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 		}
 		r.Files = append(r.Files, sec)
 	}
+	r.Tables = []Table{t}
 	return r, nil
 }
 
@@ -174,7 +184,7 @@ func FromSurvey(doc []byte, dir string, opt Options) (Report, error) {
 		return Report{}, fmt.Errorf("report: the survey is not valid JSON: %w", err)
 	}
 	r := Report{Title: "wavsieve hum and rumble survey", Subtitle: fmt.Sprintf("%d files", len(s.Files))}
-	r.Table = Table{Caption: "Files surveyed (click a heading to sort)",
+	t := Table{Caption: "Files surveyed (click a heading to sort)",
 		Columns: []string{"file", "rate (Hz)", "channels", "duration (s)", "hum (Hz)", "drift (Hz)", "harmonics above floor", "error"},
 		Numeric: []bool{false, true, true, true, true, true, true, false}}
 	for _, f := range s.Files {
@@ -182,12 +192,12 @@ func FromSurvey(doc []byte, dir string, opt Options) (Report, error) {
 		if f.Hum != nil {
 			hum, drift, nh = fmt.Sprintf("%.3f", f.Hum.Fundamental), fmt.Sprintf("%.3f", f.Hum.Drift), strconv.Itoa(len(f.Hum.Harmonics))
 		}
-		r.Table.Rows = append(r.Table.Rows, []string{f.Path, fmtHz(f.SampleRate), strconv.Itoa(f.Channels), fmt.Sprintf("%.3f", f.DurationS), hum, drift, nh, f.Error})
+		t.Rows = append(t.Rows, []string{f.Path, fmtHz(f.SampleRate), strconv.Itoa(f.Channels), fmt.Sprintf("%.3f", f.DurationS), hum, drift, nh, f.Error})
 		status := "done"
 		if f.Error != "" {
 			status = "failed"
 		}
-		r.Table.RowClass = append(r.Table.RowClass, status)
+		t.RowClass = append(t.RowClass, status)
 		sec := File{Heading: filepath.Base(f.Path), Status: status, Error: f.Error}
 		if f.Error != "" {
 			r.Files = append(r.Files, sec)
@@ -221,6 +231,7 @@ func FromSurvey(doc []byte, dir string, opt Options) (Report, error) {
 		}
 		r.Files = append(r.Files, sec)
 	}
+	r.Tables = []Table{t}
 	return r, nil
 }
 

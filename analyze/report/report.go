@@ -21,8 +21,8 @@ type Report struct {
 	Title    string
 	Subtitle string
 	Files    []File
-	// Table is the run as a sortable table (the manifest).
-	Table Table
+	// Tables are the runs as sortable tables (the manifests).
+	Tables []Table
 	// Notes are shown under the title (for example limits of the run).
 	Notes []string
 }
@@ -78,6 +78,27 @@ var page = template.Must(template.New("page").Funcs(template.FuncMap{
 	},
 }).Parse(pageHTML))
 
+// Merge appends other's files to r, and its tables: rows to a table of
+// the same columns, a new table otherwise.
+func (r *Report) Merge(other Report) {
+	r.Files = append(r.Files, other.Files...)
+	for _, t := range other.Tables {
+		merged := false
+		for i := range r.Tables {
+			if strings.Join(r.Tables[i].Columns, "\x00") == strings.Join(t.Columns, "\x00") {
+				r.Tables[i].Rows = append(r.Tables[i].Rows, t.Rows...)
+				r.Tables[i].RowClass = append(r.Tables[i].RowClass, t.RowClass...)
+				merged = true
+				break
+			}
+		}
+		if !merged {
+			r.Tables = append(r.Tables, t)
+		}
+	}
+	r.Notes = append(r.Notes, other.Notes...)
+}
+
 // Write renders r as one HTML document.
 func Write(w io.Writer, r Report) error {
 	if err := page.Execute(w, r); err != nil {
@@ -124,7 +145,7 @@ footer { margin-top: 3em; color: #4b5a6a; font-size: 0.85em; border-top: 1px sol
 <h1>{{.Title}}</h1>
 {{if .Subtitle}}<p class="sub">{{.Subtitle}}</p>{{end}}
 {{range .Notes}}<p class="note">{{.}}</p>{{end}}
-{{if .Table.Rows}}{{template "table" .Table}}{{end}}
+{{range .Tables}}{{if .Rows}}{{template "table" .}}{{end}}{{end}}
 {{range $i, $f := .Files}}
 <section class="file" id="file-{{$i}}">
 <h2>{{$f.Heading}}</h2>

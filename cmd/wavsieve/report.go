@@ -37,7 +37,7 @@ Flags:
 func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs := pflag.NewFlagSet("report", pflag.ContinueOnError)
 	fs.SetOutput(io.Discard)
-	from := fs.String("from", "", "the apply manifest or survey `document` (JSON)")
+	from := fs.StringArray("from", nil, "the apply manifest or survey `document` (JSON); repeat it to gather several runs in one report")
 	output := fs.StringP("output", "o", "", "the HTML `file` to write")
 	maxS := fs.Float64("max-seconds", 120, "analyse at most this many `seconds` of each file")
 	help := fs.BoolP("help", "h", false, "show this help")
@@ -49,38 +49,26 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		fmt.Fprint(stdout, fs.FlagUsages())
 		return exitOK
 	}
-	if *from == "" || *output == "" {
+	if len(*from) == 0 || *output == "" {
 		return report(stderr, "report", usagef("give --from and --output"), "")
 	}
 	if fs.NArg() > 0 {
 		return report(stderr, "report", usagef("unexpected argument %q", fs.Arg(0)), "")
 	}
-	data, err := os.ReadFile(*from)
-	if err != nil {
-		return report(stderr, "report", err, "")
-	}
-	var probe struct {
-		Spec  json.RawMessage   `json:"spec"`
-		Files []json.RawMessage `json:"files"`
-	}
-	if err := json.Unmarshal(data, &probe); err != nil || probe.Files == nil {
-		return report(stderr, "report", fmt.Errorf("%s: not a manifest of wavsieve apply nor a survey document", *from), "make one with 'wavsieve apply' (it writes wavsieve-manifest.json) or 'wavsieve survey --json'")
-	}
-	var isSurvey bool
-	if len(probe.Files) > 0 {
-		var f map[string]json.RawMessage
-		json.Unmarshal(probe.Files[0], &f)
-		_, isSurvey = f["path"]
-	}
 	opt := htmlreport.Options{MaxSeconds: *maxS}
 	var r htmlreport.Report
-	if isSurvey || probe.Spec == nil {
-		r, err = htmlreport.FromSurvey(data, "", opt)
-	} else {
-		r, err = htmlreport.FromApply(data, "", opt)
-	}
-	if err != nil {
-		return report(stderr, "report", fmt.Errorf("%s: %w", *from, err), "")
+	for i, name := range *from {
+		one, err := buildReport(name, opt)
+		if err != nil {
+			return report(stderr, "report", err, "make one with 'wavsieve apply' (it writes wavsieve-manifest.json) or 'wavsieve survey --json'")
+		}
+		if i == 0 {
+			r = one
+			continue
+		}
+		r.Title = "wavsieve report"
+		r.Subtitle += "; " + one.Subtitle
+		r.Merge(one)
 	}
 	var b bytes.Buffer
 	if err := htmlreport.Write(&b, r); err != nil {
@@ -91,4 +79,35 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	fmt.Fprintf(stderr, "wavsieve report: wrote %s (%d files, %d KiB)\n", *output, len(r.Files), b.Len()/1024)
 	return exitOK
+}
+
+// buildReport reads one apply manifest or survey document.
+func buildReport(name string, opt htmlreport.Options) (htmlreport.Report, error) {
+	data, err := os.ReadFile(name)
+	if err != nil {
+		return htmlreport.Report{}, err
+	}
+	var probe struct {
+		Spec  json.RawMessage   `json:"spec"`
+		Files []json.RawMessage `json:"files"`
+	}
+	if err := json.Unmarshal(data, &probe); err != nil || probe.Files == nil {
+		return htmlreport.Report{}, fmt.Errorf("%s: not a manifest of wavsieve apply nor a survey document", name)
+	}
+	isSurvey := probe.Spec == nil
+	if len(probe.Files) > 0 {
+		var f map[string]json.RawMessage
+		json.Unmarshal(probe.Files[0], &f)
+		_, isSurvey = f["path"]
+	}
+	var r htmlreport.Report
+	if isSurvey {
+		r, err = htmlreport.FromSurvey(data, "", opt)
+	} else {
+		r, err = htmlreport.FromApply(data, "", opt)
+	}
+	if err != nil {
+		return r, fmt.Errorf("%s: %w", name, err)
+	}
+	return r, nil
 }

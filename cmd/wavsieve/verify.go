@@ -96,6 +96,8 @@ type verifyReport struct {
 	Failed          int                   `json:"failed"`
 	Unmeasurable    int                   `json:"unmeasurable"`
 	Note            string                `json:"note"`
+	// NotMeasured is set when the file was too short to measure at all.
+	NotMeasured bool `json:"not_measured,omitempty"`
 	// Error says why a file apply --verify was asked to verify could not
 	// be measured.
 	Error string `json:"error,omitempty"`
@@ -363,7 +365,7 @@ func verifyPair(spec design.Spec, in, out string, only []int, segment int) (*ver
 		seg = analyze.VerifySegment(f, pts, usable)
 	}
 	if need := analyze.VerifyMinFrames(seg); usable < need {
-		return nil, fmt.Errorf("%s: too short to verify: %d frames, of which %d at each end are the filter's transients, and %d more are needed for four segments of %d", in, frames, skip, need, seg)
+		return nil, fmt.Errorf("%s: %w: %d frames, of which %d at each end are the filter's transients, and %d more are needed for four segments of %d; --probe measures the same chain on a probe signal of any length", in, errTooShort, frames, skip, need, seg)
 	}
 	est, err := analyze.VerifyEstimator(float64(fi.SampleRate), seg)
 	if err != nil {
@@ -680,6 +682,9 @@ func manifestFiles(rs []process.FileResult, v []*verifyReport) []manifestFile {
 // verify would, and reports failures and errors on stderr. A file that
 // cannot be measured (too short, say) gets a report without checks that
 // does not pass, with the reason in Error.
+// errTooShort: the file leaves too little between its transients to measure.
+var errTooShort = errors.New("too short to verify")
+
 func verifyApplied(rs []process.FileResult, spec design.Spec, only []int, stderr io.Writer) []*verifyReport {
 	out := make([]*verifyReport, len(rs))
 	for i, r := range rs {
@@ -689,6 +694,9 @@ func verifyApplied(rs []process.FileResult, spec design.Spec, only []int, stderr
 		rep, err := verifyPair(spec, r.Input, r.Output, only, 0)
 		if err != nil {
 			rep = &verifyReport{Input: r.Input, Output: r.Output, Checks: []analyze.CheckResult{}, Note: verifyNote, Error: err.Error()}
+			// A file too short to measure is not verified, which is not a
+			// failed verification: it says so and does not fail the run.
+			rep.NotMeasured = errors.Is(err, errTooShort)
 			fmt.Fprintf(stderr, "wavsieve apply: verify: %v\n", err)
 		} else if !rep.Pass {
 			fmt.Fprintf(stderr, "wavsieve apply: verify: %s: %d of %d checks failed (see the manifest, or run wavsieve verify for the table)\n", r.Output, rep.Failed, len(rep.Checks))
@@ -703,7 +711,7 @@ func verifyApplied(rs []process.FileResult, spec design.Spec, only []int, stderr
 // verifiedPass reports whether every verification made passed.
 func verifiedPass(v []*verifyReport) bool {
 	for _, r := range v {
-		if r != nil && !r.Pass {
+		if r != nil && !r.Pass && !r.NotMeasured {
 			return false
 		}
 	}
