@@ -318,7 +318,7 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 				fmt.Fprintf(stdout, "  would fail: %s\n", r.Error)
 				continue
 			}
-			fmt.Fprintf(stdout, "  %d Hz, %d channels, %.3f s, %s\n", r.SampleRate, r.Channels, r.DurationS, r.Format)
+			fmt.Fprintf(stdout, "  %s, %.3f s\n", r.Format, r.DurationS)
 			for _, s := range r.Design {
 				fmt.Fprintf(stdout, "  %s\n", stageLine(s))
 			}
