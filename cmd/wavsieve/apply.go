@@ -136,9 +136,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	tmpl := process.FileJob{Spec: spec, NoDither: o.noDither, DitherSeed: o.seed, SteadyStart: o.steady, TempDir: o.tempDir, AllowNonFinite: o.nonFinite}
 	if o.sampleFmt != "" {
-		enc, bits, ok := parseSampleFormat(o.sampleFmt)
-		if !ok {
-			return report(stderr, "apply", usagef("--sample-format %q: use pcm16, pcm24, pcm32, float32 or float64", o.sampleFmt), "")
+		enc, bits, err := parseSampleFormat(o.sampleFmt)
+		if err != nil {
+			return report(stderr, "apply", err, "")
 		}
 		tmpl.Encoding, tmpl.Bits = enc, bits
 	}
@@ -237,20 +237,21 @@ func parseShard(s string) (int, int, bool) {
 	return k, n, true
 }
 
-func parseSampleFormat(s string) (wavio.Encoding, int, bool) {
+// parseSampleFormat reads the value of --sample-format.
+func parseSampleFormat(s string) (wavio.Encoding, int, error) {
 	switch strings.ToLower(s) {
 	case "pcm16":
-		return wavio.PCM, 16, true
+		return wavio.PCM, 16, nil
 	case "pcm24":
-		return wavio.PCM, 24, true
+		return wavio.PCM, 24, nil
 	case "pcm32":
-		return wavio.PCM, 32, true
+		return wavio.PCM, 32, nil
 	case "float32":
-		return wavio.Float, 32, true
+		return wavio.Float, 32, nil
 	case "float64":
-		return wavio.Float, 64, true
+		return wavio.Float, 64, nil
 	}
-	return 0, 0, false
+	return 0, 0, usagef("--sample-format %q: use pcm16, pcm24, pcm32, float32 or float64", s)
 }
 
 func parseChannels(s string) ([]int, error) {

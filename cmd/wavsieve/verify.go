@@ -493,9 +493,9 @@ func probeVerify(spec design.Spec, in, out string, o verifyOpts, only []int) (*v
 	var bits int
 	switch {
 	case o.sampleFmt != "":
-		var ok bool
-		if enc, bits, ok = parseSampleFormat(o.sampleFmt); !ok {
-			return nil, usagef("--sample-format %q: use pcm16, pcm24, pcm32, float32 or float64", o.sampleFmt)
+		var err error
+		if enc, bits, err = parseSampleFormat(o.sampleFmt); err != nil {
+			return nil, err
 		}
 	case out != "":
 		r, err := wavio.Open(out, nil)
