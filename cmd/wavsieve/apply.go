@@ -198,6 +198,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			fmt.Fprintf(stderr, "wavsieve apply: %s\n", r.Error)
 		case process.StatusDone:
 			done++
+			for _, w := range r.Warnings {
+				fmt.Fprintf(stderr, "wavsieve apply: warning: %s: %s\n", r.Input, w)
+			}
 			if n := sum(r.Clipped); n > 0 {
 				fmt.Fprintf(stderr, "wavsieve apply: warning: %s: %d samples clipped at full scale; lower the level or write float32\n", r.Output, n)
 			}

@@ -70,6 +70,8 @@ func malformedCorpus() []badCase {
 	return []badCase{
 		{name: "empty", data: nil, isErr: isTrunc, msg: "wavio: truncated header"},
 		{name: "riff only", data: []byte("RIFF"), isErr: isTrunc, msg: "truncated header"},
+		{name: "short text file", data: []byte("hello\n"), isErr: isInvalid, msg: "not a RIFF"},
+		{name: "short riff prefix", data: []byte("RI"), isErr: isTrunc, msg: "truncated header"},
 		{name: "not riff", data: []byte("OggS\x00\x02\x00\x00\x00\x00\x00\x00\x00\x00"), isErr: isInvalid, msg: "not a RIFF"},
 		{name: "not wave", data: []byte("RIFF\x04\x00\x00\x00AVI "), isErr: isInvalid, msg: "not a WAVE file"},
 		{name: "cut in fmt", data: good[:30], isErr: isTrunc, msg: "truncated fmt chunk"},

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strings"
 )
 
 // ReaderOptions adjust a Reader. The zero value gives the defaults.
@@ -288,7 +289,12 @@ func (r *Reader) chunkSize(id string, size uint32) int64 {
 
 func (r *Reader) readHeader() error {
 	var hdr [12]byte
-	if _, err := r.readFull(hdr[:]); err != nil {
+	if n, err := r.readFull(hdr[:]); err != nil {
+		// A short file that does not even start like a WAV file is not a
+		// truncated one.
+		if n > 0 && (err == io.EOF || err == io.ErrUnexpectedEOF) && !isWAVMagicPrefix(string(hdr[:min(n, 4)])) {
+			return FormatError("header: not a RIFF, RIFX, RF64 or BW64 file")
+		}
 		return errTruncated("header", noEOF(err))
 	}
 	switch string(hdr[0:4]) {
@@ -783,4 +789,14 @@ func (r *Reader) SeekFrame(frame int64) error {
 	r.pos = frame
 	r.done = false
 	return nil
+}
+
+// isWAVMagicPrefix says whether p begins one of the magic numbers a WAV file starts with.
+func isWAVMagicPrefix(p string) bool {
+	for _, m := range []string{"RIFF", "RIFX", "RF64", "BW64"} {
+		if strings.HasPrefix(m, p) {
+			return true
+		}
+	}
+	return false
 }
