@@ -190,7 +190,7 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 				case it.Skip != "":
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusSkipped, Error: it.Skip}
 				case ctx.Err() != nil:
-					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: "not started: " + ctx.Err().Error()}
+					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Input + ": not started: the run was interrupted"}
 				default:
 					if h.Start != nil {
 						h.Start(i, it)
@@ -205,6 +205,9 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 						break
 					}
 					r, _ = FilterFile(ctx, job)
+					if r.Status == StatusFailed && ctx.Err() != nil {
+						r.Error = it.Input + ": interrupted before it was finished; no output was written"
+					}
 				}
 				res[i] = r
 				if h.Done != nil {
