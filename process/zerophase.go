@@ -6,6 +6,8 @@ import (
 	"io"
 	"math"
 	"os"
+	"sync"
+	"time"
 	"unsafe"
 
 	"gonum.org/v1/gonum/mat"
@@ -522,17 +524,75 @@ var (
 )
 
 // newSpillStore reserves memSamples of memory (rounded down to whole
-// frames) and the two file buffers in one mapping (mapSamples), which
-// the system backs only as it is touched.
+// frames) and the two file buffers in one mapping (getSpillMemory),
+// which the system backs only as it is touched.
 func newSpillStore(ch, memSamples, block int, dir string) *spillStore {
 	s := &spillStore{ch: ch, dir: dir, memFrames: memSamples / ch}
 	s.ioFrames = max(block, spillIOBytes/8/ch)
 	memN, ioN := s.memFrames*ch, s.ioFrames*ch
-	all, release := mapSamples(memN + 2*ioN)
+	all, release := getSpillMemory(memN + 2*ioN)
 	s.mem, s.release = all[:memN:memN], release
 	s.bufs[0] = all[memN : memN+ioN : memN+ioN]
 	s.bufs[1] = all[memN+ioN:]
 	return s
+}
+
+// spillKept holds the memory of the last spill that finished, for
+// spillKeep, so that runs in a row (the files of a batch, a benchmark)
+// reuse memory already mapped instead of mapping and faulting it in
+// again; at most one is kept.
+var spillKept struct {
+	sync.Mutex
+	x       []float64
+	release func()
+	timer   *time.Timer
+}
+
+const spillKeep = 2 * time.Second
+
+// getSpillMemory returns n samples, the kept ones if they have that
+// length, and the function that gives them back.
+func getSpillMemory(n int) ([]float64, func()) {
+	k := &spillKept
+	k.Lock()
+	x, release := k.x, k.release
+	if len(x) == n && x != nil {
+		k.x, k.release = nil, nil
+	} else {
+		x, release = nil, nil
+	}
+	k.Unlock()
+	if x == nil {
+		x, release = mapSamples(n)
+	}
+	return x, func() { putSpillMemory(x, release) }
+}
+
+// putSpillMemory keeps x for spillKeep in place of any memory kept
+// before, which is freed.
+func putSpillMemory(x []float64, release func()) {
+	k := &spillKept
+	k.Lock()
+	defer k.Unlock()
+	if k.release != nil {
+		k.release()
+	}
+	k.x, k.release = x, release
+	if k.timer == nil {
+		k.timer = time.AfterFunc(spillKeep, freeSpillMemory)
+	} else {
+		k.timer.Reset(spillKeep)
+	}
+}
+
+func freeSpillMemory() {
+	k := &spillKept
+	k.Lock()
+	defer k.Unlock()
+	if k.release != nil {
+		k.release()
+	}
+	k.x, k.release = nil, nil
 }
 
 // close stops the I/O goroutine, removes the file and frees the memory.
@@ -540,13 +600,16 @@ func (s *spillStore) close() {
 	if s.reqs != nil {
 		close(s.reqs)
 		<-s.exited
+		s.reqs = nil
 	}
 	if s.f != nil {
 		s.f.Close()
 		os.Remove(s.f.Name())
+		s.f = nil
 	}
 	if s.release != nil {
 		s.release()
+		s.release, s.mem, s.bufs = nil, nil, [2][]float64{}
 	}
 }
 
