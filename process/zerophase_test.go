@@ -2,11 +2,14 @@ package process
 
 import (
 	"context"
+	"encoding/binary"
 	"errors"
 	"io"
 	"math"
 	"math/rand/v2"
+	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/wavsieve/wavsieve/design"
@@ -224,6 +227,67 @@ func TestFilterFileZeroPhaseMatchesSlice(t *testing.T) {
 		if d, at := maxAbsDiff(got, want); d != 0 {
 			t.Errorf("zero-phase %v: differs by %g at %d", zp, d, at)
 		}
+	}
+}
+
+// TestFilterFileFailsMidway: an output that fails in the middle (a NaN
+// let through, which 24-bit output refuses) and a cancel in the middle
+// stop the reading and writing goroutines, return the error, and leave
+// no output and no spill file.
+func TestFilterFileFailsMidway(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	const frames = 20000
+	w, err := wavio.Create(in, wavio.WriterOptions{Format: wavio.Format{SampleRate: 8000, Channels: 2, Bits: 64, Encoding: wavio.Float}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := make([]float64, 2*frames)
+	for i := range x {
+		x[i] = 0.3 * math.Sin(float64(i)*0.01)
+	}
+	if err := w.WriteFrames(x); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	// The writer refuses a NaN: put one into the data chunk (the last
+	// chunk of the file) by hand, at frame 12345, channel 1.
+	b, err := os.ReadFile(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	at := len(b) - 8*len(x) + 8*(2*12345+1)
+	binary.LittleEndian.PutUint64(b[at:], math.Float64bits(math.NaN()))
+	if err := os.WriteFile(in, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	outDir := filepath.Join(dir, "out")
+	if err := os.Mkdir(outDir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	spec := design.Spec{Stages: []design.Stage{{Family: design.Butterworth, Response: design.Highpass, Order: 2, CutoffHz: design.Edges{100}}}}
+	for _, zp := range []bool{false, true} {
+		spec.ZeroPhase = zp
+		job := FileJob{Input: in, Output: filepath.Join(outDir, "o.wav"), Spec: spec, Encoding: wavio.PCM, Bits: 24, AllowNonFinite: true, BlockFrames: 100}
+		if _, err := FilterFile(context.Background(), job); err == nil || !strings.Contains(err.Error(), "NaN") {
+			t.Errorf("zero-phase %v, NaN written to 24-bit: error %v", zp, err)
+		}
+		ctx, cancel := context.WithCancel(context.Background())
+		job.Encoding, job.Bits = wavio.Float, 64
+		job.Progress = func(done, total int64) {
+			if done >= total/2 {
+				cancel()
+			}
+		}
+		if _, err := FilterFile(ctx, job); !errors.Is(err, context.Canceled) {
+			t.Errorf("zero-phase %v, cancelled: error %v", zp, err)
+		}
+	}
+	entries, _ := os.ReadDir(outDir)
+	if len(entries) != 0 {
+		t.Errorf("left behind: %v", entries)
 	}
 }
 
