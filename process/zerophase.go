@@ -105,11 +105,13 @@ const defaultBlockFrames = 8192
 // writes the result to dst in forward order, streaming: the forward
 // pass goes to a float64 spill (its first opt.SpillMemoryBytes in
 // memory, the rest in a file in opt.TempDir, removed before returning),
-// the backward pass reads it back in reverse blocks and overwrites each
-// block with its final values, and a last forward read feeds dst.
-// Memory stays bounded (edge buffers under 48 MiB, the in-memory spill,
-// a few blocks); disk use is 8 bytes per sample beyond the in-memory
-// part.
+// the backward pass runs over it from the end and overwrites it with
+// the final values, and a last forward read feeds dst. The file is read
+// and written in 4 MiB segments by a second goroutine while the first
+// filters; the result does not depend on its timing. Memory stays
+// bounded (edge buffers under 48 MiB, the in-memory spill, two 4 MiB
+// file buffers, a few blocks); disk use is 8 bytes per sample beyond
+// the in-memory part.
 //
 // The edges follow scipy.signal.sosfiltfilt: the signal is extended at
 // both ends (opt.Extension), the forward pass starts in the steady state
