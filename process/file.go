@@ -161,7 +161,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	// blocks behind: the filtering in between sees the same blocks in
 	// the same order, so the output is the same.
 	src := &peakSource{ctx: ctx, r: r, peak: make([]float64, inF.Channels), total: res.Frames, progress: job.Progress}
-	dst := &peakSink{w: w, peak: make([]float64, inF.Channels)}
+	outPeak := make([]float64, inF.Channels)
 	cfg := Config{Channels: inF.Channels, Only: job.Only, SteadyStart: job.SteadyStart}
 	block := job.BlockFrames
 	if block <= 0 {
@@ -175,7 +175,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		if opt.TempDir == "" {
 			opt.TempDir = dirOf(job.Output)
 		}
-		wb := newWriteBehind(dst, inF.Channels, block, nil)
+		wb := newWriteBehind(w, outPeak, block, nil)
 		rep, zerr := ZeroPhase(wb, ra, filt.Sections(), cfg, opt)
 		werr := wb.close()
 		ra.close()
@@ -187,7 +187,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 		res.PadFrames, res.EdgeTransient = rep.PadFrames, rep.TransientFrames
 	} else {
-		err := causal(dst, ra, filt.Sections(), cfg)
+		err := causal(w, outPeak, ra, filt.Sections(), cfg)
 		ra.close()
 		if err != nil {
 			return res, fmt.Errorf("%s: %w", job.Input, err)
@@ -201,7 +201,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		return res, fmt.Errorf("%s: %w", job.Output, err)
 	}
 	committed = true
-	res.PeakInDBFS, res.PeakOutDBFS = dbfs(src.peak), dbfs(dst.peak)
+	res.PeakInDBFS, res.PeakOutDBFS = dbfs(src.peak), dbfs(outPeak)
 	return res, nil
 }
 
@@ -233,18 +233,20 @@ func zeroPhaseOptions(f *design.Filter, frames int64, block int) ZeroPhaseOption
 }
 
 // causal streams the blocks of src through the cascade into dst, in
-// place: each block goes from the reading goroutine to the filter and
-// on to the writing goroutine, which hands it back to the reader.
-func causal(dst FrameSink, src *readAhead, sos []design.Section, cfg Config) error {
+// place, tracking the output's peaks: each block goes from the reading
+// goroutine to the filter and on to the writing goroutine, which hands
+// it back to the reader.
+func causal(dst FrameSink, peak []float64, src *readAhead, sos []design.Section, cfg Config) error {
 	c, err := NewCascade(sos, cfg)
 	if err != nil {
 		return err
 	}
-	wb := newWriteBehind(dst, cfg.Channels, 0, src.free)
+	wb := newWriteBehind(dst, peak, 0, src.free)
 	for {
 		p, rerr := src.next()
 		if len(p) > 0 {
 			c.Process(p, p)
+			trackPeaks(peak, p)
 			if err := wb.put(p); err != nil {
 				break // wb.close reports it
 			}
@@ -365,11 +367,13 @@ func (r *readAhead) close() {
 }
 
 // writeBehind writes to a FrameSink on its own goroutine. put hands a
-// block over; WriteFrames copies into blocks of its own. Written blocks
-// go, full length, to free. close waits for the writes and returns the
-// first error; after an error the remaining blocks are dropped.
+// block over; WriteFrames tracks the peaks of the frames per channel
+// (in the caller's goroutine, which has less to do than the encoder)
+// and copies them into blocks of its own. Written blocks go, full
+// length, to free. close waits for the writes and returns the first
+// error; after an error the remaining blocks are dropped.
 type writeBehind struct {
-	ch     int
+	peak   []float64 // one per channel
 	full   chan []float64
 	free   chan []float64
 	exited chan struct{}
@@ -378,15 +382,15 @@ type writeBehind struct {
 	closed bool
 }
 
-// newWriteBehind returns a writeBehind that sends written blocks to
-// free, or with free nil to a pool of aheadBlocks blocks of block
-// frames for WriteFrames.
-func newWriteBehind(dst FrameSink, ch, block int, free chan []float64) *writeBehind {
-	w := &writeBehind{ch: ch, full: make(chan []float64, aheadBlocks), free: free, exited: make(chan struct{})}
+// newWriteBehind returns a writeBehind for frames of len(peak) channels
+// that sends written blocks to free, or with free nil to a pool of
+// aheadBlocks blocks of block frames for WriteFrames.
+func newWriteBehind(dst FrameSink, peak []float64, block int, free chan []float64) *writeBehind {
+	w := &writeBehind{peak: peak, full: make(chan []float64, aheadBlocks), free: free, exited: make(chan struct{})}
 	if free == nil {
 		w.free = make(chan []float64, aheadBlocks)
 		for range aheadBlocks {
-			w.free <- make([]float64, block*ch)
+			w.free <- make([]float64, block*len(peak))
 		}
 	}
 	go func() {
@@ -414,6 +418,7 @@ func (w *writeBehind) put(p []float64) error {
 }
 
 func (w *writeBehind) WriteFrames(src []float64) error {
+	trackPeaks(w.peak, src)
 	for len(src) > 0 {
 		if w.failed.Load() {
 			return w.err
@@ -462,16 +467,6 @@ func (p *peakSource) ReadFrames(dst []float64) (int, error) {
 		p.err = err
 	}
 	return n, err
-}
-
-type peakSink struct {
-	w    *wavio.Writer
-	peak []float64
-}
-
-func (p *peakSink) WriteFrames(src []float64) error {
-	trackPeaks(p.peak, src)
-	return p.w.WriteFrames(src)
 }
 
 // trackPeaks raises peak[k] to the largest |x| of channel k in the
