@@ -94,7 +94,7 @@
 // side by side (testdata/engine/bench_engine.sh and
 // testdata/apply/bench_apply.sh), order-8 elliptic high-pass (4
 // sections), 10 minutes of 48 kHz stereo, in M section-samples per
-// second with both passes counted: Cascade about 1400 M copying and
+// second (both passes counted for zero-phase): Cascade about 1400 M copying and
 // 1700 M in place, 2.7 and 3.4 times scipy.signal.sosfilt (510 M);
 // ZeroPhase with the spill (112 MiB in memory, the rest in the file)
 // about 1280 M, all on file about 1230 M, ZeroPhaseSlice about 1450 M,
@@ -102,8 +102,8 @@
 // run of a process is slower (about 700 M with the spill), while memory
 // is faulted in. End to end, FilterFile (as `wavsieve apply`) on a
 // 24-bit file of that length takes about 0.7 s causal and 0.9-1.1 s
-// zero-phase, against 6.2 s for NumPy and SciPy doing the same (read,
-// decode, filter, encode, write, sync): the input is decoded on one
+// zero-phase, against 5.8-6.6 s for NumPy and SciPy doing the same
+// (read, decode, filter, encode, write, sync): the input is decoded on one
 // goroutine a few blocks ahead and the output encoded and written on
 // another a few blocks behind, with the same blocks in the same order.
 package process
