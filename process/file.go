@@ -266,9 +266,12 @@ func causal(dst FrameSink, peak []float64, src *readAhead, sos []design.Section,
 	return wb.close()
 }
 
-// aheadBlocks is the number of blocks in flight between the goroutines
-// of a file run.
-const aheadBlocks = 4
+// aheadBlocks is the number of blocks in flight between two goroutines
+// of a file run: 4, fewer for blocks of many channels, so that they
+// stay within 8 MiB (never fewer than 2).
+func aheadBlocks(block, ch int) int {
+	return max(2, min(4, (8<<20)/max(1, 8*block*ch)))
+}
 
 // readAhead reads a FrameSource on its own goroutine into aheadBlocks
 // blocks and hands them over in order, through next (the block itself)
@@ -292,14 +295,15 @@ type aheadBlock struct {
 }
 
 func newReadAhead(src FrameSource, ch, block int) *readAhead {
+	n := aheadBlocks(block, ch)
 	r := &readAhead{
 		ch:     ch,
-		free:   make(chan []float64, aheadBlocks),
-		full:   make(chan aheadBlock, aheadBlocks),
+		free:   make(chan []float64, n),
+		full:   make(chan aheadBlock, n),
 		stop:   make(chan struct{}),
 		exited: make(chan struct{}),
 	}
-	for range aheadBlocks {
+	for range n {
 		r.free <- make([]float64, block*ch)
 	}
 	go func() {
@@ -386,10 +390,11 @@ type writeBehind struct {
 // that sends written blocks to free, or with free nil to a pool of
 // aheadBlocks blocks of block frames for WriteFrames.
 func newWriteBehind(dst FrameSink, peak []float64, block int, free chan []float64) *writeBehind {
-	w := &writeBehind{peak: peak, full: make(chan []float64, aheadBlocks), free: free, exited: make(chan struct{})}
+	n := aheadBlocks(block, len(peak))
+	w := &writeBehind{peak: peak, full: make(chan []float64, n), free: free, exited: make(chan struct{})}
 	if free == nil {
-		w.free = make(chan []float64, aheadBlocks)
-		for range aheadBlocks {
+		w.free = make(chan []float64, n)
+		for range n {
 			w.free <- make([]float64, block*len(peak))
 		}
 	}
