@@ -177,6 +177,13 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 		workers = 1
 	}
 	res := make([]FileResult, len(items))
+	if tmpl.SpillMemoryBytes == 0 && workers > 1 {
+		// Workers share the in-memory part of their zero-phase spills, so
+		// that peak memory stays under 200 MB whatever the number of
+		// workers; past it the spill goes to its file.
+		step := int64(spillStep) * 8 // bytes
+		tmpl.SpillMemoryBytes = max(step, int64(spillMemory)/int64(workers)/step*step)
+	}
 	next := make(chan int)
 	var wg sync.WaitGroup
 	for w := 0; w < workers; w++ {

@@ -35,6 +35,10 @@ type FileJob struct {
 	SteadyStart bool
 	// TempDir holds the zero-phase spill; "" means the output's folder.
 	TempDir string
+	// SpillMemoryBytes is the part of a zero-phase spill kept in memory
+	// (ZeroPhaseOptions.SpillMemoryBytes); Run shares the default among
+	// its workers so that the process stays within its memory bound.
+	SpillMemoryBytes int64
 	// AllowNonFinite lets NaN and infinite input samples through instead
 	// of refusing the file.
 	AllowNonFinite bool
@@ -171,6 +175,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	defer ra.close()
 	if job.Spec.ZeroPhase {
 		opt := zeroPhaseOptions(filt, res.Frames, block)
+		opt.SpillMemoryBytes = job.SpillMemoryBytes
 		opt.TempDir = job.TempDir
 		if opt.TempDir == "" {
 			opt.TempDir = dirOf(job.Output)
