@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/wavsieve/wavsieve/design"
@@ -321,4 +322,41 @@ func TestRunWorkersSameOutput(t *testing.T) {
 func hashFileBytes(t *testing.T, name string) []byte {
 	h := hashFile(t, name)
 	return h[:]
+}
+
+func TestFilterFileProgress(t *testing.T) {
+	// Progress never goes back and ends at the file's length, causal or
+	// zero-phase (where reading and writing are each half the work).
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	writeTone(t, in, 8000, 2, 3, f64, nil)
+	for _, zp := range []bool{false, true} {
+		var mu sync.Mutex
+		var seen []int64
+		spec := humSpec
+		spec.ZeroPhase = zp
+		job := FileJob{Input: in, Output: filepath.Join(dir, "out.wav"), Spec: spec, BlockFrames: 500,
+			Progress: func(done, total int64) {
+				mu.Lock()
+				seen = append(seen, done)
+				mu.Unlock()
+				if total != 24000 {
+					t.Errorf("total %d", total)
+				}
+			}}
+		if _, err := FilterFile(context.Background(), job); err != nil {
+			t.Fatal(err)
+		}
+		for i := 1; i < len(seen); i++ {
+			if seen[i] < seen[i-1] {
+				t.Fatalf("zero-phase=%v: progress went back from %d to %d: %v", zp, seen[i-1], seen[i], seen)
+			}
+		}
+		if len(seen) < 2 || seen[len(seen)-1] != 24000 {
+			t.Errorf("zero-phase=%v: progress ends at %v", zp, seen[len(seen)-1:])
+		}
+		if zp && seen[len(seen)/2] >= 24000 {
+			t.Errorf("zero-phase progress reached the end halfway through: %v", seen)
+		}
+	}
 }

@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"time"
 
@@ -171,6 +172,13 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	if block <= 0 {
 		block = defaultBlockFrames
 	}
+	// In a zero-phase run reading is the forward pass and writing ends the
+	// backward one: each counts for half of the work.
+	var halfway *halves
+	if job.Spec.ZeroPhase && job.Progress != nil {
+		halfway = &halves{fn: job.Progress, total: res.Frames}
+		src.progress = halfway.read
+	}
 	ra := newReadAhead(src, inF.Channels, block)
 	defer ra.close()
 	if job.Spec.ZeroPhase {
@@ -180,7 +188,11 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		if opt.TempDir == "" {
 			opt.TempDir = dirOf(job.Output)
 		}
-		wb := newWriteBehind(w, outPeak, block, nil)
+		var sink FrameSink = w
+		if halfway != nil {
+			sink = &countingSink{dst: w, ch: inF.Channels, add: halfway.wrote}
+		}
+		wb := newWriteBehind(sink, outPeak, block, nil)
 		rep, zerr := ZeroPhase(wb, ra, filt.Sections(), cfg, opt)
 		werr := wb.close()
 		ra.close()
@@ -477,6 +489,43 @@ func (p *peakSource) ReadFrames(dst []float64) (int, error) {
 		p.err = err
 	}
 	return n, err
+}
+
+// halves reports the progress of a zero-phase run from two goroutines:
+// frames read (the forward pass) and frames written (after the backward
+// pass), each half of the work.
+type halves struct {
+	mu     sync.Mutex
+	fn     func(done, total int64)
+	total  int64
+	rd, wr int64
+}
+
+func (h *halves) read(done, _ int64) {
+	h.mu.Lock()
+	defer h.mu.Unlock()
+	h.rd = done
+	h.fn((h.rd+h.wr)/2, h.total)
+}
+
+func (h *halves) wrote(n int64) {
+	h.mu.Lock()
+	defer h.mu.Unlock()
+	h.wr += n
+	h.fn((h.rd+h.wr)/2, h.total)
+}
+
+// countingSink passes frames on to dst and counts them.
+type countingSink struct {
+	dst FrameSink
+	ch  int
+	add func(frames int64)
+}
+
+func (c *countingSink) WriteFrames(src []float64) error {
+	err := c.dst.WriteFrames(src)
+	c.add(int64(len(src) / c.ch))
+	return err
 }
 
 // trackPeaks raises peak[k] to the largest |x| of channel k in the
