@@ -45,6 +45,15 @@ type FileJob struct {
 	AllowNonFinite bool
 	// BlockFrames is the processing block; 0 means 8192.
 	BlockFrames int
+	// Observe, if set, is called once the input is open and the filter
+	// designed; the function it returns (if not nil) then sees every block
+	// of the run in order: the input frames and the output frames as
+	// computed in float64, before they are quantised to the output format
+	// (interleaved, the same number of frames; it must not keep them). It
+	// runs on the goroutine that writes the output; an error it returns
+	// fails the file. Verification uses it to measure the filter itself
+	// rather than the filter plus the output's quantisation.
+	Observe func(job *FileJob, in wavio.Format, frames int64, f *design.Filter) func(in, out []float64) error
 	// Progress, if set, is called after each block with the frames done,
 	// from the goroutine that reads the input.
 	Progress func(done, total int64)
@@ -172,6 +181,17 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	if block <= 0 {
 		block = defaultBlockFrames
 	}
+	var out FrameSink = w
+	if job.Observe != nil {
+		if see := job.Observe(&job, inF, res.Frames, filt); see != nil {
+			t, err := newTapSink(w, job.Input, see, block)
+			if err != nil {
+				return res, err
+			}
+			defer t.close()
+			out = t
+		}
+	}
 	// In a zero-phase run reading is the forward pass and writing ends the
 	// backward one: each counts for half of the work.
 	var halfway *halves
@@ -188,9 +208,9 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		if opt.TempDir == "" {
 			opt.TempDir = dirOf(job.Output)
 		}
-		var sink FrameSink = w
+		sink := out
 		if halfway != nil {
-			sink = &countingSink{dst: w, ch: inF.Channels, add: halfway.wrote}
+			sink = &countingSink{dst: out, ch: inF.Channels, add: halfway.wrote}
 		}
 		wb := newWriteBehind(sink, outPeak, block, nil)
 		rep, zerr := ZeroPhase(wb, ra, filt.Sections(), cfg, opt)
@@ -204,7 +224,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 		res.PadFrames, res.EdgeTransient = rep.PadFrames, rep.TransientFrames
 	} else {
-		err := causal(w, outPeak, ra, filt.Sections(), cfg)
+		err := causal(out, outPeak, ra, filt.Sections(), cfg)
 		ra.close()
 		if err != nil {
 			return res, fmt.Errorf("%s: %w", job.Input, err)
@@ -513,6 +533,57 @@ func (h *halves) wrote(n int64) {
 	defer h.mu.Unlock()
 	h.wr += n
 	h.fn((h.rd+h.wr)/2, h.total)
+}
+
+// tapSink shows each output block, with the input frames at the same
+// place read from a second reader of the input, to see, then passes the
+// block on to dst.
+type tapSink struct {
+	dst FrameSink
+	r   *wavio.Reader
+	see func(in, out []float64) error
+	buf []float64
+	ch  int
+}
+
+func newTapSink(dst FrameSink, input string, see func(in, out []float64) error, block int) (*tapSink, error) {
+	r, err := wavio.Open(input, &wavio.ReaderOptions{AllowNonFinite: true})
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", input, err)
+	}
+	ch := r.Format().Channels
+	return &tapSink{dst: dst, r: r, see: see, buf: make([]float64, block*ch), ch: ch}, nil
+}
+
+func (t *tapSink) WriteFrames(src []float64) error {
+	for at := 0; at < len(src); {
+		n := min(len(src)-at, len(t.buf))
+		got := 0
+		for got < n {
+			k, err := t.r.ReadFrames(t.buf[got:n])
+			got += k * t.ch
+			if err != nil {
+				if got < n {
+					return fmt.Errorf("process: reading the input again for the measurement: %w", noEOF(err))
+				}
+				break
+			}
+		}
+		if err := t.see(t.buf[:n], src[at:at+n]); err != nil {
+			return err
+		}
+		at += n
+	}
+	return t.dst.WriteFrames(src)
+}
+
+func (t *tapSink) close() { t.r.Close() }
+
+func noEOF(err error) error {
+	if errors.Is(err, io.EOF) {
+		return io.ErrUnexpectedEOF
+	}
+	return err
 }
 
 // countingSink passes frames on to dst and counts them.

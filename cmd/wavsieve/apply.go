@@ -165,13 +165,18 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
+	var inline *inlineVerify
+	if *verifyRuns {
+		inline = &inlineVerify{sessions: map[string]inlineSession{}, only: tmpl.Only}
+		tmpl.Observe = inline.observe
+	}
 	prog := newProgress(stderr, items, !o.noProgress)
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
 
 	var verified []*verifyReport
-	if *verifyRuns && ctx.Err() == nil {
-		verified = verifyApplied(results, spec, tmpl.Only, stderr)
+	if inline != nil && ctx.Err() == nil {
+		verified = inline.reports(results, stderr)
 	}
 	m := manifest{Files: manifestFiles(results, verified), Spec: spec, Workers: o.workers, Shard: o.shard}
 	base := o.manifest

@@ -12,6 +12,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 
 	"github.com/spf13/pflag"
 	"github.com/wavsieve/wavsieve/analyze"
@@ -98,6 +99,8 @@ type verifyReport struct {
 	Note            string                `json:"note"`
 	// NotMeasured is set when the file was too short to measure at all.
 	NotMeasured bool `json:"not_measured,omitempty"`
+	// MeasuredOn says what output was measured when it was not the file.
+	MeasuredOn string `json:"measured_on,omitempty"`
 	// Error says why a file apply --verify was asked to verify could not
 	// be measured.
 	Error string `json:"error,omitempty"`
@@ -341,6 +344,59 @@ func verifyPair(spec design.Spec, in, out string, only []int, segment int) (*ver
 	case ri.Frames() < 0:
 		return nil, fmt.Errorf("%s: the length is not known from the header", in)
 	}
+	f, err := process.DesignFor(spec, fi.SampleRate, in)
+	if err != nil {
+		return nil, err
+	}
+	vs, err := newVerifySession(f, in, out, fi, ri.Frames(), only, segment)
+	if err != nil {
+		return nil, err
+	}
+	const block = 1 << 16
+	nc := fi.Channels
+	bx, by := make([]float64, block*nc), make([]float64, block*nc)
+	for vs.pos < vs.frames-vs.skip {
+		n, err1 := readFull(ri, bx)
+		m, err2 := readFull(ro, by)
+		if n != m {
+			return nil, fmt.Errorf("%s and %s: reading stopped at different frames (%d, %d)", in, out, vs.pos+int64(n), vs.pos+int64(m))
+		}
+		if err := vs.feed(bx[:n*nc], by[:n*nc]); err != nil {
+			return nil, err
+		}
+		if err1 != nil || err2 != nil || n == 0 {
+			if e := firstNonEOF(err1, err2); e != nil {
+				return nil, fmt.Errorf("%s / %s: %w", in, out, e)
+			}
+			break
+		}
+	}
+	return vs.finish()
+}
+
+// verifySession measures one run from its input and output frames fed
+// in order: it skips the filter's transients at both ends and gathers
+// the cross spectra of the checked channels.
+type verifySession struct {
+	f       *design.Filter
+	in, out string
+	rate    int
+	est     *analyze.Estimator
+	acc     *analyze.Accumulator
+	pts     []analyze.VerifyPoint
+	chans   []int
+	nc      int
+	seg     int
+	skip    int64
+	frames  int64
+	pos     int64
+	px, py  [][]float64
+}
+
+// newVerifySession prepares the measurement of a run of f over frames
+// frames of format fi. It fails with errTooShort when too little lies
+// between the transients.
+func newVerifySession(f *design.Filter, in, out string, fi wavio.Format, frames int64, only []int, segment int) (*verifySession, error) {
 	chans := only
 	if len(chans) == 0 {
 		for c := 0; c < fi.Channels; c++ {
@@ -352,13 +408,8 @@ func verifyPair(spec design.Spec, in, out string, only []int, segment int) (*ver
 			return nil, usagef("--channels: %s has %d channels, not %d", in, fi.Channels, c+1)
 		}
 	}
-	f, err := process.DesignFor(spec, fi.SampleRate, in)
-	if err != nil {
-		return nil, err
-	}
 	pts := analyze.VerifyPoints(f)
 	skip := int64(analyze.VerifySkipFrames(f))
-	frames := ri.Frames()
 	usable := frames - 2*skip
 	seg := segment
 	if seg == 0 {
@@ -375,54 +426,49 @@ func verifyPair(spec design.Spec, in, out string, only []int, segment int) (*ver
 	if err != nil {
 		return nil, err
 	}
-	const block = 1 << 16
-	nc := fi.Channels
-	bx, by := make([]float64, block*nc), make([]float64, block*nc)
-	px, py := make([][]float64, len(chans)), make([][]float64, len(chans))
-	for i := range px {
-		px[i], py[i] = make([]float64, 0, block), make([]float64, 0, block)
-	}
-	var pos int64
-	for pos < frames-skip {
-		n, err1 := readFull(ri, bx)
-		m, err2 := readFull(ro, by)
-		if n != m {
-			return nil, fmt.Errorf("%s and %s: reading stopped at different frames (%d, %d)", in, out, pos+int64(n), pos+int64(m))
-		}
-		lo, hi := max(skip-pos, 0), min(frames-skip-pos, int64(n))
-		if hi > lo {
-			for i, c := range chans {
-				px[i], py[i] = px[i][:0], py[i][:0]
-				for t := lo; t < hi; t++ {
-					px[i] = append(px[i], bx[int(t)*nc+c])
-					py[i] = append(py[i], by[int(t)*nc+c])
-				}
-			}
-			if err := acc.Add(px, py); err != nil {
-				return nil, err
+	vs := &verifySession{f: f, in: in, out: out, rate: fi.SampleRate, est: est, acc: acc, pts: pts, chans: chans,
+		nc: fi.Channels, seg: seg, skip: skip, frames: frames,
+		px: make([][]float64, len(chans)), py: make([][]float64, len(chans))}
+	return vs, nil
+}
+
+// feed takes the next frames of the input (bx) and the output (by),
+// interleaved, as many of each.
+func (vs *verifySession) feed(bx, by []float64) error {
+	n := int64(len(bx) / vs.nc)
+	lo, hi := max(vs.skip-vs.pos, 0), min(vs.frames-vs.skip-vs.pos, n)
+	if hi > lo {
+		for i, c := range vs.chans {
+			vs.px[i], vs.py[i] = vs.px[i][:0], vs.py[i][:0]
+			for t := lo; t < hi; t++ {
+				vs.px[i] = append(vs.px[i], bx[int(t)*vs.nc+c])
+				vs.py[i] = append(vs.py[i], by[int(t)*vs.nc+c])
 			}
 		}
-		pos += int64(n)
-		if err1 != nil || err2 != nil || n == 0 {
-			if e := firstNonEOF(err1, err2); e != nil {
-				return nil, fmt.Errorf("%s / %s: %w", in, out, e)
-			}
-			break
+		if err := vs.acc.Add(vs.px, vs.py); err != nil {
+			return err
 		}
 	}
+	vs.pos += n
+	return nil
+}
+
+// finish judges what was fed.
+func (vs *verifySession) finish() (*verifyReport, error) {
+	f := vs.f
 	rep := &verifyReport{
-		Pass: true, Input: in, Output: out, SampleRate: fi.SampleRate, ZeroPhase: f.ZeroPhase,
-		Segment: seg, Window: analyze.VerifyWindow.String(), Segments: acc.Segments(),
-		ResolutionHz: float64(fi.SampleRate) / float64(seg), SkippedFrames: int(skip),
+		Pass: true, Input: vs.in, Output: vs.out, SampleRate: vs.rate, ZeroPhase: f.ZeroPhase,
+		Segment: vs.seg, Window: analyze.VerifyWindow.String(), Segments: vs.acc.Segments(),
+		ResolutionHz: float64(vs.rate) / float64(vs.seg), SkippedFrames: int(vs.skip),
 		ConfidenceLevel: analyze.VerifyLevel, Note: verifyNote, Checks: []analyze.CheckResult{}, filter: f,
 	}
-	for i, c := range chans {
+	for i, c := range vs.chans {
 		rep.Channels = append(rep.Channels, c+1)
-		tr, err := acc.Transfer(i)
+		tr, err := vs.acc.Transfer(i)
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w", in, err)
+			return nil, fmt.Errorf("%s: %w", vs.in, err)
 		}
-		rep.Checks = append(rep.Checks, analyze.Verify(f, est, tr, pts, c+1)...)
+		rep.Checks = append(rep.Checks, analyze.Verify(f, vs.est, tr, vs.pts, c+1)...)
 	}
 	for _, c := range rep.Checks {
 		switch c.Verdict {
@@ -678,30 +724,65 @@ func manifestFiles(rs []process.FileResult, v []*verifyReport) []manifestFile {
 	return out
 }
 
-// verifyApplied verifies the output of every file done, as wavsieve
-// verify would, and reports failures and errors on stderr. A file that
-// cannot be measured (too short, say) gets a report without checks that
-// does not pass, with the reason in Error.
 // errTooShort: the file leaves too little between its transients to measure.
 var errTooShort = errors.New("too short to verify")
 
-func verifyApplied(rs []process.FileResult, spec design.Spec, only []int, stderr io.Writer) []*verifyReport {
+// inlineVerify measures the files of an apply run while they are
+// filtered, on the output as computed in float64 before it is quantised
+// to the output format, so that the measurement floor is the filter's,
+// not the output word length's.
+type inlineVerify struct {
+	mu       sync.Mutex
+	sessions map[string]inlineSession // by output path
+	only     []int
+}
+
+type inlineSession struct {
+	vs  *verifySession
+	err error
+}
+
+// observe is the process.FileJob.Observe of an apply --verify run.
+func (iv *inlineVerify) observe(job *process.FileJob, fi wavio.Format, frames int64, f *design.Filter) func(in, out []float64) error {
+	vs, err := newVerifySession(f, job.Input, job.Output, fi, frames, iv.only, 0)
+	iv.mu.Lock()
+	iv.sessions[job.Output] = inlineSession{vs, err}
+	iv.mu.Unlock()
+	if err != nil {
+		return nil
+	}
+	return vs.feed
+}
+
+// reports judges each finished file, printing a line for each.
+func (iv *inlineVerify) reports(rs []process.FileResult, stderr io.Writer) []*verifyReport {
 	out := make([]*verifyReport, len(rs))
 	for i, r := range rs {
 		if r.Status != process.StatusDone {
 			continue
 		}
-		rep, err := verifyPair(spec, r.Input, r.Output, only, 0)
+		s, ok := iv.sessions[r.Output]
+		err := s.err
+		var rep *verifyReport
+		switch {
+		case !ok:
+			err = fmt.Errorf("%s: not measured", r.Output)
+		case err == nil:
+			rep, err = s.vs.finish()
+		}
 		if err != nil {
 			rep = &verifyReport{Input: r.Input, Output: r.Output, Checks: []analyze.CheckResult{}, Note: verifyNote, Error: err.Error()}
 			// A file too short to measure is not verified, which is not a
 			// failed verification: it says so and does not fail the run.
 			rep.NotMeasured = errors.Is(err, errTooShort)
 			fmt.Fprintf(stderr, "wavsieve apply: verify: %v\n", err)
-		} else if !rep.Pass {
-			fmt.Fprintf(stderr, "wavsieve apply: verify: %s: %d of %d checks failed (see the manifest, or run wavsieve verify for the table)\n", r.Output, rep.Failed, len(rep.Checks))
 		} else {
-			fmt.Fprintf(stderr, "wavsieve apply: verify: %s: %d passed, %d unmeasurable\n", r.Output, rep.Passed, rep.Unmeasurable)
+			rep.MeasuredOn = "the float64 output before quantisation"
+			if !rep.Pass {
+				fmt.Fprintf(stderr, "wavsieve apply: verify: %s: %d of %d checks failed (see the manifest, or run wavsieve verify for the table)\n", r.Output, rep.Failed, len(rep.Checks))
+			} else {
+				fmt.Fprintf(stderr, "wavsieve apply: verify: %s: %d passed, %d unmeasurable\n", r.Output, rep.Passed, rep.Unmeasurable)
+			}
 		}
 		out[i] = rep
 	}

@@ -290,3 +290,59 @@ func TestVerifyHumNotchesBesidePassbandPoints(t *testing.T) {
 		t.Errorf("pass %v with %d passing checks", doc.Pass, passed)
 	}
 }
+
+type stopChecks []struct {
+	Kind    string `json:"kind"`
+	Verdict string `json:"verdict"`
+}
+
+// stopband counts the stopband checks with the verdict.
+func (c stopChecks) stopband(verdict string) int {
+	n := 0
+	for _, x := range c {
+		if strings.HasPrefix(x.Kind, "stopband") && x.Verdict == verdict {
+			n++
+		}
+	}
+	return n
+}
+
+func TestApplyVerifyMeasuresBeforeQuantisation(t *testing.T) {
+	// A 110 dB stopband lies below the floor of a 16-bit output (about
+	// -98 dB relative to a full-scale sine; common practice: 6.02 dB per
+	// bit plus 1.76 dB). Measured on the written file the stopband is
+	// unmeasurable; apply --verify measures the float64 output before
+	// quantisation and sees it.
+	dir := t.TempDir()
+	in := filepath.Join(dir, "noise.wav")
+	writeNoiseWAV(t, in, 8000, 1, 20, 7)
+	spec := []string{"--family", "elliptic", "--response", "lowpass", "--passband", "1000", "--stopband", "1300", "--ripple", "0.5", "--attenuation", "110"}
+	out := filepath.Join(dir, "out")
+	code, stdout, stderr := runCmd(t, append([]string{"apply", "--verify", "--json", "--output", out, in}, spec...)...)
+	if code != exitOK {
+		t.Fatalf("apply --verify: exit %d: %s", code, stderr)
+	}
+	var m struct {
+		Files []struct {
+			Verify struct {
+				MeasuredOn string     `json:"measured_on"`
+				Checks     stopChecks `json:"checks"`
+			} `json:"verify"`
+		} `json:"files"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &m); err != nil || len(m.Files) != 1 {
+		t.Fatalf("manifest: %v", err)
+	}
+	v := m.Files[0].Verify
+	if v.MeasuredOn == "" || v.Checks.stopband("pass") == 0 || v.Checks.stopband("fail") != 0 {
+		t.Errorf("inline: measured on %q, %d stopband checks pass, %d fail", v.MeasuredOn, v.Checks.stopband("pass"), v.Checks.stopband("fail"))
+	}
+	code, stdout, _ = runCmd(t, append([]string{"verify", "--json", "--input", in, "--output", filepath.Join(out, "noise.wav")}, spec...)...)
+	var f struct {
+		Checks stopChecks `json:"checks"`
+	}
+	json.Unmarshal([]byte(stdout), &f)
+	if f.Checks.stopband("unmeasurable") == 0 || f.Checks.stopband("fail") != 0 {
+		t.Errorf("on the 16-bit file (exit %d): %d stopband checks unmeasurable, %d fail", code, f.Checks.stopband("unmeasurable"), f.Checks.stopband("fail"))
+	}
+}
