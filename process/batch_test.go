@@ -360,3 +360,49 @@ func TestFilterFileProgress(t *testing.T) {
 		}
 	}
 }
+
+func TestFilterFileObserve(t *testing.T) {
+	// Observe sees every input frame with its float64 output before the
+	// output is quantised: here the cascade's own result, while the 16-bit
+	// file holds it rounded.
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in.wav")
+	writeTone(t, in, 8000, 2, 1, f64, nil)
+	x, _, _ := readAll(t, in)
+	f, _ := design.Design(humSpec, 8000)
+	c, _ := NewCascade(f.Sections(), Config{Channels: 2})
+	want := c.Process(nil, x)
+	var gotIn, gotOut []float64
+	job := FileJob{Input: in, Output: filepath.Join(dir, "out.wav"), Spec: humSpec, Encoding: wavio.PCM, Bits: 16, NoDither: true, BlockFrames: 300,
+		Observe: func(j *FileJob, fi wavio.Format, frames int64, filt *design.Filter) func(a, b []float64) error {
+			if frames != 8000 || fi.Channels != 2 || len(filt.Stages) != 1 {
+				t.Errorf("observe called with %d frames, %v, %d stages", frames, fi, len(filt.Stages))
+			}
+			return func(a, b []float64) error {
+				gotIn = append(gotIn, a...)
+				gotOut = append(gotOut, b...)
+				return nil
+			}
+		}}
+	if _, err := FilterFile(context.Background(), job); err != nil {
+		t.Fatal(err)
+	}
+	if len(gotIn) != len(x) || len(gotOut) != len(want) {
+		t.Fatalf("observed %d and %d samples of %d", len(gotIn), len(gotOut), len(x))
+	}
+	for i := range x {
+		if gotIn[i] != x[i] || gotOut[i] != want[i] {
+			t.Fatalf("sample %d: observed %v -> %v, want %v -> %v", i, gotIn[i], gotOut[i], x[i], want[i])
+		}
+	}
+	y, _, _ := readAll(t, job.Output)
+	differ := 0
+	for i := range y {
+		if y[i] != want[i] {
+			differ++
+		}
+	}
+	if differ == 0 {
+		t.Error("the 16-bit file equals the float64 output: nothing shows that Observe saw it before quantisation")
+	}
+}
