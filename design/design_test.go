@@ -12,7 +12,7 @@ import (
 
 const (
 	handbookTol = 1e-4  // handbook tables are printed to 4 decimals
-	edgeRelTol  = 1e-9  // issue: digital edges land on the requested Hz to 1e-9 relative
+	edgeRelTol  = 1e-9  // required accuracy: digital edges land on the requested Hz to 1e-9 relative
 	bilinearTol = 1e-12 // exact mappings, to rounding
 )
 
@@ -50,7 +50,7 @@ func TestPrototypesAgainstSciPy(t *testing.T) {
 			tol := protoRelTol
 			if norm != "" && p.Order > 10 {
 				// Roots of a high-order Bessel polynomial are ill-conditioned
-				// in float64 for both implementations; the issue's 1e-8 applies.
+				// in float64 for both implementations; the digital-design tolerance of 1e-8 applies.
 				tol = rootRelTol
 			}
 			if d, ok := matchRoots(got.Poles, p.Poles.complex(), 1); !ok || d > tol {

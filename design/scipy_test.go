@@ -13,7 +13,7 @@ import (
 // (SciPy 1.10.1, NumPy 1.24.2; the versions are in the file).
 
 const (
-	magTolDB    = 0.01  // issue tolerance on the magnitude, dB
+	magTolDB    = 0.01  // required agreement of the magnitude, dB
 	magFloorDB  = -100  // below this the magnitude is not compared
 	rootRelTol  = 1e-8  // zeros and poles, relative to max(|root|, 1e-3)
 	gainRelTol  = 1e-8  // gain, relative
