@@ -164,7 +164,7 @@ func (f *Filter) MaxPoleRadius() float64 {
 // natural mode needs to decay that much, ln(10^(-dB/20)) / ln(r) for the
 // largest pole radius r, and the time after which the impulse response
 // stays below its peak by dB (simulated through the sections, for at most
-// maxSamples samples; 0 means no limit beyond eight times the first
+// maxSamples samples, 0 meaning 2^22, and at most eight times the first
 // figure). The first figure is what matters for hum notches, whose
 // impulse response is small but rings for as long as their poles say.
 func (f *Filter) DecaySamples(dB float64, maxSamples int) int {
@@ -172,11 +172,23 @@ func (f *Filter) DecaySamples(dB float64, maxSamples int) int {
 	r := f.MaxPoleRadius()
 	est := 1
 	if r > 0 && r < 1 {
-		est = int(math.Ceil(math.Log(math.Pow(10, -dB/20)) / math.Log(r)))
+		est = int(math.Ceil(math.Min(math.Log(math.Pow(10, -dB/20))/math.Log(r), 1<<40)))
 	}
+	// The simulation is bounded (maxSamples, or 2^22 samples by
+	// default): past that the dominant-pole figure stands alone, which for
+	// poles this close to the unit circle is the one that matters.
 	limit := 8*est + 64
-	if maxSamples > 0 && limit > maxSamples {
+	if maxSamples <= 0 {
+		maxSamples = 1 << 22
+	}
+	if limit > maxSamples || limit < 0 {
 		limit = maxSamples
+	}
+	// And at most 2^26 section steps: a comb of hundreds of notches is
+	// ruled by its poles, as the first figure says.
+	limit = min(limit, max(1<<26/max(len(secs), 1), 1024))
+	if est >= limit {
+		return est // the simulation could not find a later sample
 	}
 	st := make([][2]float64, len(secs))
 	thr, peak, last := 0.0, 0.0, 0

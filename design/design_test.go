@@ -792,3 +792,17 @@ func TestRippleEdgesLandOnRequestedHz(t *testing.T) {
 		}
 	}
 }
+
+func TestDecaySamplesBounded(t *testing.T) {
+	// Poles within 1e-8 of the unit circle: the simulation is bounded and
+	// the dominant-pole figure ln(10^-3)/ln(r) stands (closed form).
+	f, err := Design(Spec{Stages: []Stage{{Family: Elliptic, Response: Bandstop, Order: 32, CutoffHz: Edges{49.9, 50.1}, RippleDB: 0.01, AttenuationDB: 300}}}, 192000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := f.MaxPoleRadius()
+	want := math.Log(1e-3) / math.Log(r)
+	if got := float64(f.DecaySamples(60, 0)); math.Abs(got-want) > 1+1e-9*want {
+		t.Errorf("decay %g samples, dominant pole gives %g", got, want)
+	}
+}

@@ -205,11 +205,18 @@ func spreadGain(secs []Section, k float64) {
 	if target == 0 || math.IsNaN(target) || math.IsInf(target, 0) {
 		target = 1
 	}
+	// cum[j] is the running product of the scaled sections at grid[j],
+	// updated one section at a time.
+	cum := make([]complex128, len(grid))
+	for j := range cum {
+		cum[j] = 1
+	}
 	applied := 1.0
 	for i := 0; i < len(secs)-1; i++ {
 		peak := 0.0
-		for _, w := range grid {
-			peak = math.Max(peak, cmplx.Abs(sectionsAt(secs[:i+1], w)))
+		for j, w := range grid {
+			cum[j] *= sectionsAt(secs[i:i+1], w)
+			peak = math.Max(peak, cmplx.Abs(cum[j]))
 		}
 		if peak == 0 || math.IsInf(peak, 0) || math.IsNaN(peak) {
 			continue
@@ -217,6 +224,9 @@ func spreadGain(secs []Section, k float64) {
 		g := target / peak
 		for j := 0; j < 3; j++ {
 			secs[i][j] *= g
+		}
+		for j := range cum {
+			cum[j] *= complex(g, 0)
 		}
 		applied *= g
 	}

@@ -406,3 +406,34 @@ func TestFilterFileObserve(t *testing.T) {
 		t.Error("the 16-bit file equals the float64 output: nothing shows that Observe saw it before quantisation")
 	}
 }
+
+func TestZeroPhaseOptionsBounded(t *testing.T) {
+	// A filter that rings far longer than the file is padded by at most the
+	// file's length and the engine's edge budget, and the rest of its decay
+	// is reported; too many tones for the fit fall back to reflection.
+	ring, err := design.Design(design.Spec{Stages: []design.Stage{{Family: design.Elliptic, Response: design.Bandstop, Order: 32, CutoffHz: design.Edges{49.9, 50.1}, RippleDB: 0.01, AttenuationDB: 300}}}, 48000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	opt := zeroPhaseOptions(ring, 288000, 2, 8192)
+	if opt.PadFrames > 288000 || opt.DecayFrames <= opt.PadFrames {
+		t.Errorf("pad %d, decay %d for a 288000-frame file", opt.PadFrames, opt.DecayFrames)
+	}
+	if edge := 4 * opt.PadFrames * 2 * 8; edge > memBudget/4 {
+		t.Errorf("pads take %d bytes, over a quarter of %d", edge, memBudget)
+	}
+	many, err := design.Design(design.Spec{Stages: []design.Stage{{Family: design.Notch, FundamentalHz: 50, BandwidthHz: 0.5}}}, 48000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if o := zeroPhaseOptions(many, 2000, 1, 8192); o.Extension != ExtendOdd {
+		t.Errorf("%d tones fitted on 1000 frames", len(o.ToneHz))
+	}
+	some, err := design.Design(design.Spec{Stages: []design.Stage{{Family: design.Notch, FundamentalHz: 50, BandwidthHz: 0.5, Harmonics: 20}}}, 48000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if o := zeroPhaseOptions(some, 480000, 1, 8192); o.Extension != ExtendTones || o.FitFrames < 2*(1+2*len(o.ToneHz)) {
+		t.Errorf("tones %d, fit %d", len(o.ToneHz), o.FitFrames)
+	}
+}

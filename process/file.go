@@ -202,7 +202,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	ra := newReadAhead(src, inF.Channels, block)
 	defer ra.close()
 	if job.Spec.ZeroPhase {
-		opt := zeroPhaseOptions(filt, res.Frames, block)
+		opt := zeroPhaseOptions(filt, res.Frames, inF.Channels, block)
 		opt.SpillMemoryBytes = job.SpillMemoryBytes
 		opt.TempDir = job.TempDir
 		if opt.TempDir == "" {
@@ -247,10 +247,22 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 // quantisation of 16-bit audio relative to the signal (common practice
 // is to pad by several time constants). Notch stages extend by their
 // fitted hum instead of by reflection.
-func zeroPhaseOptions(f *design.Filter, frames int64, block int) ZeroPhaseOptions {
+//
+// The pad is at most the file's own length, and at most what the edge
+// buffers hold for the channel count: a filter that rings for longer
+// (poles within a hair of the unit circle) is padded that far, and the
+// rest of its decay is reported as the transient left at each end.
+func zeroPhaseOptions(f *design.Filter, frames int64, channels, block int) ZeroPhaseOptions {
 	const decayDB = 80
 	decay := f.DecaySamples(decayDB, 0)
-	opt := ZeroPhaseOptions{PadFrames: decay, DecayFrames: decay, BlockFrames: block, SampleRateHz: f.SampleRate}
+	pad := int64(decay)
+	pad = min(pad, max(frames, 1))
+	ch := int64(max(channels, 1))
+	// The engine holds four pad-length buffers (head, tail and the two
+	// pads) and two fit-length ones per channel: a quarter of its budget
+	// goes to the pads, half to the fit.
+	pad = min(pad, int64(memBudget/4)/(4*8*ch))
+	opt := ZeroPhaseOptions{PadFrames: int(pad), DecayFrames: decay, BlockFrames: block, SampleRateHz: f.SampleRate}
 	var tones []float64
 	for _, st := range f.Stages {
 		tones = append(tones, st.NotchHz...)
@@ -260,9 +272,13 @@ func zeroPhaseOptions(f *design.Filter, frames int64, block int) ZeroPhaseOption
 		opt.ToneHz = tones
 		// One second of fit, or what the file has: enough to tell apart
 		// tones 1 Hz apart (common practice: resolution ~ 1 / length).
+		cols := int64(1 + 2*len(tones))
 		fit := int64(f.SampleRate)
-		if fit > frames/2 {
-			fit = frames / 2
+		fit = min(fit, frames/2, int64(memBudget/2)/(16*ch+16*cols))
+		if fit < 2*cols {
+			// Too many tones for the file or the memory: reflect instead.
+			opt.Extension, opt.ToneHz = ExtendOdd, nil
+			return opt
 		}
 		opt.FitFrames = int(fit)
 	}

@@ -199,7 +199,7 @@ func TestFilterFileZeroPhaseMatchesSlice(t *testing.T) {
 		cfg := Config{Channels: 3}
 		var y []float64
 		if zp {
-			y, _, err = ZeroPhaseSlice(nil, x, f.Sections(), cfg, zeroPhaseOptions(f, int64(len(x)/3), block))
+			y, _, err = ZeroPhaseSlice(nil, x, f.Sections(), cfg, zeroPhaseOptions(f, int64(len(x)/3), 3, block))
 			if err != nil {
 				t.Fatal(err)
 			}
