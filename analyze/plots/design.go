@@ -50,19 +50,9 @@ var halfPowerDB = 10 * math.Log10(0.5)
 // magnitude with the spec's forbidden areas, phase, group delay, and the
 // pole/zero diagram) and writes it to w in format "svg" or "png".
 func Design(f *design.Filter, w io.Writer, format string, opts DesignOptions) error {
-	format, err := checkFormat(format)
+	format, width, height, err := checkFilterPlot(f, format, opts.Width, opts.Height, designWidth, designHeight)
 	if err != nil {
 		return err
-	}
-	width, height, err := checkSize(opts.Width, opts.Height, designWidth, designHeight)
-	if err != nil {
-		return err
-	}
-	if f == nil {
-		return errors.New("plots: invalid filter: nil")
-	}
-	if !(f.SampleRate > 0) || math.IsInf(f.SampleRate, 0) {
-		return fmt.Errorf("plots: invalid filter: sample rate %g Hz", f.SampleRate)
 	}
 	s := newSweep(f)
 	panels := [][]*plot.Plot{
@@ -527,4 +517,24 @@ func hzList(v []float64) string {
 		s[i] = strconv.FormatFloat(x, 'g', 6, 64)
 	}
 	return strings.Join(s, "-")
+}
+
+// checkFilterPlot checks the arguments of a plot of a filter: the format,
+// the size (zero: the defaults) and the filter itself.
+func checkFilterPlot(f *design.Filter, format string, w, h, defW, defH vg.Length) (string, vg.Length, vg.Length, error) {
+	format, err := checkFormat(format)
+	if err != nil {
+		return "", 0, 0, err
+	}
+	width, height, err := checkSize(w, h, defW, defH)
+	if err != nil {
+		return "", 0, 0, err
+	}
+	if f == nil {
+		return "", 0, 0, errors.New("plots: invalid filter: nil")
+	}
+	if !(f.SampleRate > 0) || math.IsInf(f.SampleRate, 0) {
+		return "", 0, 0, fmt.Errorf("plots: invalid filter: sample rate %g Hz", f.SampleRate)
+	}
+	return format, width, height, nil
 }

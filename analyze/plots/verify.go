@@ -1,7 +1,6 @@
 package plots
 
 import (
-	"errors"
 	"fmt"
 	"image/color"
 	"io"
@@ -43,19 +42,9 @@ var (
 // the measured gains with their confidence intervals, coloured by verdict,
 // and writes the image to w in format "svg" or "png".
 func Verify(w io.Writer, format string, f *design.Filter, marks []VerifyMark, opts VerifyOptions) error {
-	format, err := checkFormat(format)
+	format, width, height, err := checkFilterPlot(f, format, opts.Width, opts.Height, spectrumWidth, spectrumHeight)
 	if err != nil {
 		return err
-	}
-	width, height, err := checkSize(opts.Width, opts.Height, spectrumWidth, spectrumHeight)
-	if err != nil {
-		return err
-	}
-	if f == nil {
-		return errors.New("plots: invalid filter: nil")
-	}
-	if !(f.SampleRate > 0) || math.IsInf(f.SampleRate, 0) {
-		return fmt.Errorf("plots: invalid filter: sample rate %g Hz", f.SampleRate)
 	}
 	s := newSweep(f)
 	p := magnitudePanel(f, s)
