@@ -336,7 +336,7 @@ func designStage(st Stage, rate float64, zeroPhase bool) (Designed, error) {
 		rp, rs := st.RippleDB/passes, st.AttenuationDB/passes
 		n, wn := minOrder(st.Family, st.Response, pb, sb, rp, rs)
 		if n > MaxOrder {
-			return Designed{}, fmt.Errorf("design: the tolerances need a %s of order %d, above the limit of %d: widen the transition band, allow more ripple or ask for less attenuation", st.Family, n, MaxOrder)
+			return Designed{}, fmt.Errorf("design: the tolerances need a %s filter of order %d, above the limit of %d: widen the transition band, allow more ripple or ask for less attenuation", st.Family, n, MaxOrder)
 		}
 		d.Order = n
 		d.ZPK = Bilinear(analogDesign(st, n, wn, rp, rs))
@@ -344,6 +344,9 @@ func designStage(st Stage, rate float64, zeroPhase bool) (Designed, error) {
 		for _, w := range wn {
 			d.EdgesHz = append(d.EdgesHz, unwarp(w, rate))
 		}
+	}
+	if want := d.Order * (1 + len(d.Spec.CutoffHz)/2 + len(d.Spec.PassbandHz)/2); d.Form != FormNotch && len(d.ZPK.Poles) != want {
+		return Designed{}, fmt.Errorf("design: the %s design of order %d came out with %d poles instead of %d; lower the order", st.Family, d.Order, len(d.ZPK.Poles), want)
 	}
 	if r := maxRadius(d.ZPK.Poles); !(r < 1) {
 		return Designed{}, fmt.Errorf("design: the %s design has a pole at radius %.15g, on or outside the unit circle: it would be unstable; lower the order or move the edges away from 0 Hz and Nyquist", st.Family, r)

@@ -806,3 +806,21 @@ func TestDecaySamplesBounded(t *testing.T) {
 		t.Errorf("decay %g samples, dominant pole gives %g", got, want)
 	}
 }
+
+func TestBesselOrderLimit(t *testing.T) {
+	// Above MaxBesselOrder the reverse Bessel polynomial's roots are not
+	// found reliably in float64: refused, never a filter with the wrong
+	// number of poles.
+	for n := 17; n <= MaxOrder; n++ {
+		f, err := Design(Spec{Stages: []Stage{{Family: Bessel, Response: Lowpass, Order: n, CutoffHz: Edges{1000}}}}, 48000)
+		if n > MaxBesselOrder {
+			if err == nil {
+				t.Errorf("order %d accepted", n)
+			}
+			continue
+		}
+		if err != nil || len(f.Stages[0].ZPK.Poles) != n {
+			t.Errorf("order %d: %v", n, err)
+		}
+	}
+}

@@ -51,6 +51,9 @@ func validate(st Stage, rate float64) error {
 	if st.Order < 1 || st.Order > MaxOrder {
 		return fmt.Errorf("design: invalid order %d: it must be from 1 to %d (a band response has twice as many poles)", st.Order, MaxOrder)
 	}
+	if st.Family == Bessel && st.Order > MaxBesselOrder {
+		return fmt.Errorf("design: invalid order %d: bessel designs are limited to order %d, where its polynomial's roots are still found accurately in float64", st.Order, MaxBesselOrder)
+	}
 	if len(st.CutoffHz) != nEdges {
 		return fmt.Errorf("design: invalid spec: a %s needs %d cutoff_hz value(s), got %d", st.Response, nEdges, len(st.CutoffHz))
 	}
@@ -64,6 +67,9 @@ func validate(st Stage, rate float64) error {
 	}
 	return nil
 }
+
+// MaxBesselOrder is the highest Bessel prototype order accepted.
+const MaxBesselOrder = 25
 
 const familyList = "butterworth, chebyshev1, chebyshev2, elliptic, bessel or notch"
 

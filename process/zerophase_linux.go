@@ -8,7 +8,7 @@ import (
 // mapSamples returns n zeroed float64 outside the Go heap, in an
 // anonymous mapping the kernel backs as it is touched, with transparent
 // huge pages where it allows them (madvise mode): a fault per 2 MiB
-// instead of per 4 KiB, which on the project's virtual machine is the
+// instead of per 4 KiB, which on a 2-core test machine is the
 // difference between about 10 ms and 400 ms for the 112 MiB of an
 // in-memory spill. The memory holds no Go pointers. release unmaps it;
 // nothing may use the slice afterwards. If the mapping fails, the
