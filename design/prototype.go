@@ -138,29 +138,18 @@ func besselPrototype(n int, norm string) ZPK {
 
 // reverseBessel returns the coefficients of theta_n, lowest power first.
 func reverseBessel(n int) []float64 {
+	// theta_n(s) coefficients a_k = (2n-k)! / (2^(n-k) k! (n-k)!) (Thomson
+	// 1949), built down from a_n = 1 by the ratio of consecutive ones,
+	// a_{k-1} = a_k k (2n-k+1) / (2 (n-k+1)): exact integers as long as
+	// float64 holds them, and finite far beyond.
 	c := make([]float64, n+1)
-	// theta_n(s) coefficients: a_k = (2n-k)! / (2^(n-k) k! (n-k)!).
-	// Built from a_n = 1 by a_{k-1} = a_k * 2k(n-k+1)... computed in log form
-	// to keep high orders finite.
-	for k := 0; k <= n; k++ {
-		lg := lgammaInt(2*n-k) - float64(n-k)*math.Ln2 - lgammaInt(k) - lgammaInt(n-k)
-		c[k] = math.Exp(lg)
-	}
-	// Exact integers for the orders where float64 holds them exactly keep
-	// the roots as accurate as the root finder allows.
 	c[n] = 1
 	for k := n; k > 0; k-- {
-		// a_{k-1}/a_k = (2n-k+1) * 2 * k / ((2n-2k+2) (n-k+1)) ... use the direct
-		// ratio of the closed form: a_{k-1} = a_k * k * (2n-k+1) / (2 (n-k+1)) * 2 / (2n-k+1) * (2n-k+1)
 		c[k-1] = c[k] * float64(2*n-k+1) * float64(k) / (2 * float64(n-k+1))
 	}
 	return c
 }
 
-func lgammaInt(k int) float64 {
-	v, _ := math.Lgamma(float64(k + 1))
-	return v
-}
 
 // besselHalfPower finds w with |H(jw)| = 1/sqrt(2) for H = k / prod(s - p),
 // by bisection on the monotone log magnitude.
