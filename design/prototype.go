@@ -150,7 +150,6 @@ func reverseBessel(n int) []float64 {
 	return c
 }
 
-
 // besselHalfPower finds w with |H(jw)| = 1/sqrt(2) for H = k / prod(s - p),
 // by bisection on the monotone log magnitude.
 func besselHalfPower(p []complex128, k float64) float64 {
