@@ -36,6 +36,10 @@ type Designed struct {
 	// ("passband"); the margin is then at the stopband edge.
 	ExactEdge string
 
+	// Mask is the tolerance mask of a stage defined by a standard
+	// (weighting, fractional-octave band), nil for the other families.
+	Mask []MaskPoint
+
 	NotchHz          []float64 // centres of a notch stage
 	NotchBandwidthHz []float64 // their -3 dB widths (of the effective response)
 
