@@ -25,6 +25,10 @@ var bhTerms = [4]float64{0.35875, 0.48829, 0.14128, 0.01168}
 // dB down needs the start-up transient well below it.
 const toneDecayDB = 140
 
+// zeroDB: a designed response below it is a zero on the unit circle
+// evaluated with rounding error, and is written as minus infinity.
+const zeroDB = -300
+
 // Result is the verification of one run: its verdict, its checks and how
 // they were read.
 type Result struct {
@@ -274,6 +278,9 @@ func (s *Session) framesFor(seg int) int64 {
 func (s *Session) planPoint(p Point, usable int64) plan {
 	pl := plan{p: p, omega: 2 * math.Pi * p.FrequencyHz / s.fs}
 	pl.designed = s.f.EffectiveDB(p.FrequencyHz)
+	if pl.designed < zeroDB {
+		pl.designed = math.Inf(-1) // a zero on the unit circle, to rounding
+	}
 	pl.offset = pl.designed - s.stageDB(p.Stage, p.FrequencyHz)
 	notch := p.Kind == KindNotch
 	fits := func(seg int) bool { return int64(seg)*(MinSegments+1)/2 <= usable }

@@ -15,6 +15,7 @@ import (
 	"syscall"
 
 	"github.com/spf13/pflag"
+	"github.com/wavsieve/wavsieve/analyze/verify"
 	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
@@ -165,18 +166,19 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	var inline *inlineVerify
+	var inline *verify.Observer
 	if *verifyRuns {
-		inline = &inlineVerify{sessions: map[string]inlineSession{}, only: tmpl.Only}
-		tmpl.Observe = inline.observe
+		inline = verify.NewObserver(verify.Options{Channels: tmpl.Only})
+		tmpl.Observe = inline.Observe
 	}
 	prog := newProgress(stderr, items, !o.noProgress)
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
 
-	var verified []*verifyReport
+	var verified []*verify.Result
+	verdict := ""
 	if inline != nil && ctx.Err() == nil {
-		verified = inline.reports(results, stderr)
+		verified, verdict = inlineReports(inline, results, stderr)
 	}
 	m := manifest{Files: manifestFiles(results, verified), Spec: spec, Workers: o.workers, Shard: o.shard}
 	base := o.manifest
@@ -214,11 +216,14 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 	}
 	fmt.Fprintf(stderr, "wavsieve apply: %d done, %d skipped, %d failed; manifest %s.json\n", done, skipped, failed, base)
+	if verdict != "" {
+		fmt.Fprintf(stderr, "wavsieve apply: verification: %s\n", verdict)
+	}
 	if ctx.Err() != nil {
 		fmt.Fprintln(stderr, "wavsieve apply: interrupted; no partial outputs were left")
 		return exitFail
 	}
-	if failed > 0 || !verifiedPass(verified) {
+	if failed > 0 || verdict == verify.Fail {
 		return exitFail
 	}
 	return exitOK
