@@ -37,13 +37,21 @@ spill file beside the output (or in --temp-dir), so files larger than memory
 work; the ends are padded for as long as the filter takes to ring down, by
 odd reflection, or for hum notches by the fitted hum itself.
 
-A manifest of the run (JSON and CSV) is written to the output folder, or
-where --manifest says; --json prints the JSON manifest on stdout.
+A record of the run (the manifest, JSON and CSV) is written to the output
+folder, or where --manifest says; --json prints this run's part of it on
+stdout. Runs into one folder add to one record, one row per output; runs
+that share a record wait for each other. Each row holds a digest of the
+design and settings the output was made with: an existing complete output
+is skipped only when its digest matches, and refused otherwise (give
+--replace to redo it).
 
 --shard K/N keeps every N-th input of the sorted list, starting with the
 K-th, so that N machines given the same command share an archive: in a
 Slurm array, --shard $((SLURM_ARRAY_TASK_ID+1))/$SLURM_ARRAY_TASK_COUNT;
-in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N.
+in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
+share writes its own record, wavsieve-manifest.K-of-N.json, holding the
+whole input list; 'wavsieve gather DIR' merges them and lists what is
+missing.
 
 Exit codes: 0 every file done or skipped, 1 some failed, 2 usage error.
 
@@ -237,7 +245,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	rec.Merge(rows)
 	rec.Spec, _ = json.Marshal(spec)
 	rec.Workers = o.workers
-	rec.Command = append([]string{"wavsieve", "apply"}, args...)
+	rec.Command = append([]string{programName(), "apply"}, args...)
 	rec.WorkingDir, _ = os.Getwd()
 	if popt.Shards > 0 {
 		rec.Share = &runrecord.Share{Index: popt.Shard, Count: popt.Shards}
@@ -433,3 +441,13 @@ func stageLine(s process.StageSummary) string {
 }
 
 func openWAV(name string) (*wavio.Reader, error) { return wavio.Open(name, nil) }
+
+// programName is how the record names this program in the commands it
+// keeps: the path it was started by when that is a wavsieve, so that a
+// resubmitted task finds the same program.
+func programName() string {
+	if len(os.Args) > 0 && strings.TrimSuffix(filepath.Base(os.Args[0]), ".exe") == "wavsieve" {
+		return os.Args[0]
+	}
+	return "wavsieve"
+}
