@@ -388,7 +388,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 		}
 		fmt.Fprintf(w, "  %-2d %-2d %-13s %11s %8s %15s %8s %15s %9s %7s  %s\n", c.Channel, c.Stage, kind, fmtHz(c.FrequencyHz),
 			fmtDB(c.DesignedDB, "%.2f"), fmtPair(c.DesignRangeDB), fmtDB(c.MeasuredDB, "%.2f"), fmtPair(c.IntervalDB), lim, fmtDB(c.MarginDB, "%+.2f"), c.Verdict)
-		if c.Reason != "" && c.Verdict != verify.Pass {
+		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1)) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}
 	}
