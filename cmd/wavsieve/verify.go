@@ -368,7 +368,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 	what := fmt.Sprintf("%s against %s", r.Output, r.Input)
 	switch r.Method {
 	case "tone probe":
-		what = fmt.Sprintf("tone probe in the format of %s, one tone per check frequency", r.Input)
+		what = fmt.Sprintf("tone probe in the format of %s: a steady tone at each check frequency", r.Input)
 	case "noise probe":
 		what = fmt.Sprintf("noise probe in the format of %s", r.Input)
 	}
