@@ -518,9 +518,23 @@ func TestNotchHarmonics(t *testing.T) {
 			}
 		}
 	}
-	// Every harmonic below Nyquist when harmonics is 0: 50 Hz at 8 kHz has
+	// Without harmonics, every harmonic below DefaultNotchLimitHz (1000 Hz):
+	// 50 Hz has harmonics 1..19 below it, 60 Hz 1..16 (950 and 960 Hz).
+	for _, c := range []struct {
+		f0   float64
+		want int
+	}{{50, 19}, {60, 16}, {1200, 1}} {
+		all, err := Design(Spec{Stages: []Stage{{Family: Notch, FundamentalHz: c.f0, BandwidthHz: 1}}}, 8000)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if n := len(all.Stages[0].NotchHz); n != c.want {
+			t.Errorf("%g Hz: %d notches by default, want %d", c.f0, n, c.want)
+		}
+	}
+	// Every harmonic below Nyquist when asked for: 50 Hz at 8 kHz has
 	// harmonics 1..79 with their 1 Hz bands below 4000 Hz.
-	all, err := Design(Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, BandwidthHz: 1}}}, 8000)
+	all, err := Design(Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, BandwidthHz: 1, Harmonics: 1000}}}, 8000)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -822,5 +836,57 @@ func TestBesselOrderLimit(t *testing.T) {
 		if err != nil || len(f.Stages[0].ZPK.Poles) != n {
 			t.Errorf("order %d: %v", n, err)
 		}
+	}
+}
+
+// TestNoiseShareRemoved checks the narrow-notch estimate of the share of
+// white-noise power a comb removes against a direct numerical integral of
+// 1 - |H_eff|^2 over 0..Nyquist (the definition of that share), and the
+// warning it drives.
+func TestNoiseShareRemoved(t *testing.T) {
+	// The estimate neglects the overlap of the notches' skirts, so it is
+	// an upper bound: within a few per cent for notches far apart, more
+	// where wide notches (constant q, high harmonics) reach their
+	// neighbours. Below it by more than rounding is a defect.
+	const (
+		separatedTol = 0.05
+		overlapTol   = 0.20
+		belowTol     = 0.01
+	)
+	cases := []struct {
+		name string
+		spec Spec
+		rate float64
+		tol  float64
+		warn bool
+	}{
+		{"7 notches 2 Hz", Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, Harmonics: 7, BandwidthHz: 2}}}, 8000, separatedTol, false},
+		{"7 notches 2 Hz zero-phase", Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, Harmonics: 7, BandwidthHz: 2}}, ZeroPhase: true}, 8000, separatedTol, false},
+		{"default harmonics q 27.8", Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, Q: 27.8}}}, 8000, overlapTol, true},
+		{"odd q 50", Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 60, Harmonics: 7, OddOnly: true, Q: 50}}}, 8000, separatedTol, false},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			f, err := Design(c.spec, c.rate)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := f.NoiseShareRemoved(0)
+			// Midpoint rule on a grid far finer than the narrowest notch.
+			const n = 400000
+			nyq := c.rate / 2
+			var sum float64
+			for i := 0; i < n; i++ {
+				hz := (float64(i) + 0.5) * nyq / n
+				sum += 1 - math.Pow(10, f.EffectiveDB(hz)/10)
+			}
+			want := sum / n
+			if got < want*(1-belowTol) || got > want*(1+c.tol) {
+				t.Errorf("share %.5f, numerical integral %.5f", got, want)
+			}
+			if w := f.Warnings(); (len(w) > 0) != c.warn {
+				t.Errorf("warnings %q, want a warning: %v", w, c.warn)
+			}
+		})
 	}
 }

@@ -71,7 +71,7 @@ type Stage struct {
 	BesselNorm    string  `json:"bessel_norm,omitempty"`
 
 	// Notch stages: a second-order notch at FundamentalHz and at its
-	// harmonics up to number Harmonics (0: every harmonic below Nyquist),
+	// harmonics up to number Harmonics (0: those below DefaultNotchLimitHz),
 	// each BandwidthHz wide at -3 dB, or of constant quality factor Q
 	// (bandwidth = centre / Q) when Q is set instead.
 	FundamentalHz float64 `json:"fundamental_hz,omitempty"`

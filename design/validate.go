@@ -144,7 +144,7 @@ func validateNotch(st Stage, rate float64) error {
 		return fmt.Errorf("design: fundamental_hz %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate", st.FundamentalHz, rate/2, rate)
 	}
 	if st.Harmonics < 0 {
-		return fmt.Errorf("design: invalid spec: harmonics %d is negative; use 0 for every harmonic below Nyquist", st.Harmonics)
+		return fmt.Errorf("design: invalid spec: harmonics %d is negative; omit it for every harmonic below 1000 Hz", st.Harmonics)
 	}
 	switch {
 	case st.BandwidthHz != 0 && st.Q != 0:

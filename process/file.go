@@ -145,6 +145,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	if err != nil {
 		return res, err
 	}
+	res.Warnings = append(res.Warnings, filt.Warnings()...)
 	for _, st := range filt.Stages {
 		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 	}

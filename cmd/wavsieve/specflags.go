@@ -44,7 +44,7 @@ func (s *specFlags) register(fs *pflag.FlagSet) {
 	fs.Float64Var(&s.attenuation, "attenuation", 0, "smallest stopband attenuation in `dB`")
 	fs.StringVar(&s.besselNorm, "bessel-norm", "", "Bessel normalisation: phase (default), delay or magnitude")
 	fs.Float64Var(&s.fundamental, "hum", 0, "notch: mains fundamental in `Hz` (for example 50 or 60)")
-	fs.IntVar(&s.harmonics, "harmonics", 0, "notch: highest harmonic `number` to notch (0: all below Nyquist)")
+	fs.IntVar(&s.harmonics, "harmonics", 0, "notch: highest harmonic `number` to notch (default: every harmonic below 1000 Hz)")
 	fs.Float64Var(&s.bandwidth, "notch-width", 0, "notch: -3 dB width of each notch in `Hz`")
 	fs.Float64Var(&s.q, "notch-q", 0, "notch: constant quality factor `Q` (width = centre / Q) instead of --notch-width")
 	fs.BoolVar(&s.oddOnly, "odd-only", false, "notch: odd harmonics only")

@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/csv"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -154,8 +153,7 @@ func runSpectrum(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		if len(docs) == 2 {
 			doc.Compare = docs[1]
 		}
-		enc := json.NewEncoder(stdout)
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, false); err != nil {
 			return report(stderr, "spectrum", err, "")
 		}
 		return exitOK

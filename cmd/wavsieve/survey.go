@@ -165,9 +165,7 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "survey", err, "")
 		}
 	} else {

@@ -245,9 +245,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 	}
 	if o.asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "verify", err, "")
 		}
 	} else {
