@@ -91,8 +91,14 @@ type Spec struct {
 
 // ParseSpec reads a spec file: either one stage object, or an object
 // with a "stages" array. Unknown keys are errors, so that a misspelt key
-// is not silently ignored.
+// is not silently ignored. A syntax error, an unknown key or a value of
+// the wrong type is a *SpecError with its line and column. A leading
+// UTF-8 byte-order mark is ignored.
 func ParseSpec(data []byte) (Spec, error) {
+	data = bytes.TrimPrefix(data, utf8BOM)
+	if err := locateSpecError(data); err != nil {
+		return Spec{}, err
+	}
 	var probe map[string]json.RawMessage
 	if err := json.Unmarshal(data, &probe); err != nil {
 		return Spec{}, fmt.Errorf("design: spec is not a JSON object: %w", err)

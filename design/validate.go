@@ -45,6 +45,9 @@ func validate(st Stage, rate float64) error {
 	if tolerance {
 		return validateTolerance(st, rate, nEdges)
 	}
+	if st.Order == 0 && len(st.CutoffHz) > 0 {
+		return fmt.Errorf("design: invalid spec: cutoff_hz needs order, the prototype order (for example 4); or, for the minimum order, give passband_hz, stopband_hz, ripple_db and attenuation_db instead of cutoff_hz")
+	}
 	if st.Order == 0 && len(st.CutoffHz) == 0 {
 		return fmt.Errorf("design: invalid spec: give order and cutoff_hz, or passband_hz, stopband_hz, ripple_db and attenuation_db for the minimum order")
 	}
@@ -141,7 +144,7 @@ func validateNotch(st Stage, rate float64) error {
 		return fmt.Errorf("design: invalid spec: notch needs fundamental_hz above 0, got %g", st.FundamentalHz)
 	}
 	if st.FundamentalHz >= rate/2 {
-		return fmt.Errorf("design: fundamental_hz %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate", st.FundamentalHz, rate/2, rate)
+		return &ValueError{Key: "fundamental_hz", Value: st.FundamentalHz, Unit: "Hz", Detail: fmt.Sprintf("is at or above the Nyquist frequency %g Hz of the %g Hz rate", rate/2, rate)}
 	}
 	if st.Harmonics < 0 {
 		return fmt.Errorf("design: invalid spec: harmonics %d is negative; omit it for every harmonic below 1000 Hz", st.Harmonics)
@@ -165,10 +168,10 @@ func checkEdges(key string, e []float64, rate float64) error {
 	nyq := rate / 2
 	for _, f := range e {
 		if !(f > 0) || math.IsInf(f, 0) {
-			return fmt.Errorf("design: invalid spec: %s value %g Hz must be above 0 Hz", key, f)
+			return &ValueError{Key: key, Value: f, Unit: "Hz", Detail: "must be above 0 Hz", Invalid: true}
 		}
 		if f >= nyq {
-			return fmt.Errorf("design: %s value %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate; use an edge below %g Hz or a file with a higher rate", key, f, nyq, rate, nyq)
+			return &ValueError{Key: key, Value: f, Unit: "Hz", Detail: fmt.Sprintf("is at or above the Nyquist frequency %g Hz of the %g Hz rate; use an edge below %g Hz or a file with a higher rate", nyq, rate, nyq)}
 		}
 	}
 	if len(e) == 2 && !(e[0] < e[1]) {

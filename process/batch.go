@@ -66,7 +66,7 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 		for _, p := range matches {
 			st, err := os.Stat(p)
 			if err != nil {
-				return nil, fmt.Errorf("process: %w", err)
+				return nil, wavio.PathError(p, err)
 			}
 			if !st.IsDir() {
 				found = append(found, src{p, filepath.Base(p)})
@@ -128,7 +128,7 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 		byOut[oa] = f.path
 		it := Item{Input: f.path, Output: out}
 		if !opt.Replace && completeOutput(f.path, out) {
-			it.Skip = "output exists and is complete (use the replace option to redo it)"
+			it.Skip = "output exists and is complete (--replace redoes it)"
 		}
 		items = append(items, it)
 	}

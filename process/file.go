@@ -232,7 +232,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 	}
 	if n, first := r.NonFinite(); n > 0 {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("%d NaN or infinite input samples let through, the first at frame %d channel %d", n, first.Frame, first.Channel))
+		res.Warnings = append(res.Warnings, fmt.Sprintf("%d NaN or infinite input samples let through, the first at frame %d channel %d (counted from 1)", n, first.Frame, first.Channel+1))
 	}
 	res.Clipped = w.Clipped()
 	if err := w.Close(); err != nil {

@@ -139,7 +139,7 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	f, err := design.Design(spec, *rate)
 	if err != nil {
-		return report(stderr, "design", err, designHint(err))
+		return report(stderr, "design", sf.valueError(err), designHint(err))
 	}
 	for _, w := range f.Warnings() {
 		fmt.Fprintf(stderr, "wavsieve design: warning: %s\n", w)

@@ -189,7 +189,7 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 func expandInputs(arg string, recursive bool) ([]string, error) {
 	items, err := process.Plan([]string{arg}, process.PlanOptions{OutputDir: filepath.Join(os.DevNull, "survey"), Recursive: recursive})
 	if errors.Is(err, fs.ErrNotExist) {
-		return nil, fmt.Errorf("%s: no such file or folder; check the path", arg)
+		return nil, wavio.PathError(arg, err)
 	}
 	if err != nil {
 		msg := strings.TrimPrefix(err.Error(), "process: ")

@@ -284,7 +284,7 @@ func verifyHint(err error) string {
 func readManifest(name string) (design.Spec, [][2]string, error) {
 	b, err := os.ReadFile(name)
 	if err != nil {
-		return design.Spec{}, nil, err
+		return design.Spec{}, nil, wavio.PathError(name, err)
 	}
 	var m struct {
 		Spec  json.RawMessage `json:"spec"`
