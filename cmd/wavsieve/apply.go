@@ -97,7 +97,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.manifest, "manifest", "", "write the manifest to `base`.json and base.csv (default: in the output folder)")
 	fs.StringVar(&o.sampleFmt, "sample-format", "", "output samples: pcm16, pcm24, pcm32, float32 or float64 (default: the input's)")
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
-	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the clock; recorded in the manifest)")
+	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
 	fs.StringVar(&o.channels, "channels", "", "filter only these channels, counted from 1 (`list` such as 1,3); others pass through")
 	fs.BoolVar(&o.steady, "steady-start", false, "causal runs start settled on the first sample, so a DC offset gives no thump")
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")

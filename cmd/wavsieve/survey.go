@@ -314,6 +314,9 @@ func printSurvey(w io.Writer, f surveyFile) {
 	}
 	for _, r := range f.Rumble {
 		fmt.Fprintf(w, "  rumble, channel %d: %.1f dBFS below %.0f Hz, %.1f dB over the 200-2000 Hz floor", r.Channel, r.LevelDB, r.BelowHz, r.ExcessDB)
+		if r.ToneHz > 0 {
+			fmt.Fprintf(w, "; a steady %.1f Hz tone at %.1f dBFS", r.ToneHz, r.ToneDBFS)
+		}
 		if r.Present {
 			fmt.Fprintf(w, "; high-pass at %g Hz", r.CornerHz)
 		}
