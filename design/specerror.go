@@ -312,20 +312,20 @@ func describeToken(t json.Token) string {
 
 // ValueError is a spec value that cannot be designed (at this rate, or
 // at all). Key names the spec key, so that a front end that took the
-// value from a flag can name the flag instead.
+// value from a flag can name the flag instead. It comes wrapped in an
+// *Error of its kind; find it with ValueOf.
 type ValueError struct {
+	Kind   ErrorKind
 	Key    string
 	Value  float64
 	Unit   string // "Hz", or "" for a count
 	Detail string // what is wrong and what would work
-	// Invalid marks a value that is wrong whatever the rate.
-	Invalid bool
 }
 
 func (e *ValueError) Error() string {
-	p := "design: "
-	if e.Invalid {
-		p += "invalid spec: "
+	p := ""
+	if e.Kind == ErrInvalid {
+		p = "invalid spec: "
 	}
 	return p + e.Key + " value " + e.Quantity() + " " + e.Detail
 }
@@ -336,4 +336,20 @@ func (e *ValueError) Quantity() string {
 		return fmt.Sprintf("%g", e.Value)
 	}
 	return fmt.Sprintf("%g %s", e.Value, e.Unit)
+}
+
+// valueError is a design error of a kind about one key's value.
+func valueError(kind ErrorKind, key string, v float64, unit, detail string) error {
+	return &Error{Kind: kind, err: &ValueError{Kind: kind, Key: key, Value: v, Unit: unit, Detail: detail}}
+}
+
+// ValueOf returns the ValueError in err's chain, if the design error
+// there is about one key's value.
+func ValueOf(err error) (*ValueError, bool) {
+	var e *Error
+	if !errors.As(err, &e) {
+		return nil, false
+	}
+	ve, ok := e.err.(*ValueError)
+	return ve, ok
 }
