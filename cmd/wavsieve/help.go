@@ -195,16 +195,18 @@ wavsieve design --json
   The top-level "sections" is the whole chain in the order it runs, each
   row normalised to a0 = 1; zeros and poles are in the z plane.
 
-wavsieve apply --json (and the manifest file wavsieve-manifest.json)
-  {"files": [{"input", "output", "sample_rate_hz", "channels", "frames",
-              "format", "output_format", "duration_s", "zero_phase",
+wavsieve apply --json (and the run record wavsieve-manifest.json)
+  {"kind", "version", "spec": {the spec}, "command", "working_dir",
+   "workers",
+   "files": [{"input", "output", "status": "done" | "skipped" | "failed",
+              "error", "sample_rate_hz", "channels", "frames", "duration_s",
+              "format", "output_format", "zero_phase",
               "design": [{"family", "response", "order", "sections",
                           "edges_hz"}],
-              "peak_in_dbfs", "peak_out_dbfs", "clipped_samples",
-              "dither_seed", "seconds",
-              "status": "done" | "skipped" | "failed", "error"}],
-   "spec": {the spec}}
-  The same rows are written as wavsieve-manifest.csv.
+              "design_digest", "peak_in_dbfs", "peak_out_dbfs",
+              "clipped_samples", "dither_seed", "seconds"}]}
+  The same rows are written as wavsieve-manifest.csv; runs into one
+  folder add to one record, keyed by output.
 
 wavsieve spectrum --json
   {"version", "file", "sample_rate_hz", "window", "segment", "overlap",
