@@ -68,28 +68,30 @@ type StageSummary struct {
 	EdgesHz  []float64 `json:"edges_hz"`
 }
 
-// FileResult is the outcome of one file.
+// FileResult is the outcome of one file. Its record (JSON and CSV) is
+// written and read by package process/runrecord, which owns its columns.
 type FileResult struct {
-	Input         string         `json:"input"`
-	Output        string         `json:"output"`
-	SampleRate    int            `json:"sample_rate_hz"`
-	Channels      int            `json:"channels"`
-	Frames        int64          `json:"frames"`
-	Format        string         `json:"format"`
-	OutFormat     string         `json:"output_format,omitempty"`
-	DurationS     float64        `json:"duration_s"`
-	ZeroPhase     bool           `json:"zero_phase"`
-	Design        []StageSummary `json:"design,omitempty"`
-	PeakInDBFS    []float64      `json:"peak_in_dbfs,omitempty"`
-	PeakOutDBFS   []float64      `json:"peak_out_dbfs,omitempty"`
-	Clipped       []int64        `json:"clipped_samples,omitempty"`
-	DitherSeed    uint64         `json:"dither_seed,omitempty"`
-	PadFrames     int            `json:"zero_phase_pad_frames,omitempty"`
-	EdgeTransient int            `json:"edge_transient_frames,omitempty"`
-	Warnings      []string       `json:"warnings,omitempty"`
-	Seconds       float64        `json:"seconds"`
-	Status        string         `json:"status"`
-	Error         string         `json:"error"`
+	Input         string
+	Output        string
+	SampleRate    int
+	Channels      int
+	Frames        int64
+	Format        string
+	OutFormat     string
+	DurationS     float64
+	ZeroPhase     bool
+	Design        []StageSummary
+	DesignDigest  string // FileJob.DesignDigest of the design and settings used
+	PeakInDBFS    []float64
+	PeakOutDBFS   []float64
+	Clipped       []int64
+	DitherSeed    uint64
+	PadFrames     int
+	EdgeTransient int
+	Warnings      []string
+	Seconds       float64
+	Status        string
+	Error         string
 }
 
 // Statuses of a FileResult.
@@ -148,11 +150,9 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	for _, st := range filt.Stages {
 		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 	}
-	outF := inF
-	if job.Encoding != 0 {
-		outF = inF.WithSample(job.Encoding, job.Bits)
-	}
+	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()
+	res.DesignDigest = job.DesignDigest(filt, outF)
 	w, err := wavio.Create(job.Output, wavio.WriterOptions{Format: outF, Chunks: r.Chunks(), NoDither: job.NoDither, DitherSeed: job.DitherSeed})
 	if err != nil {
 		return res, fmt.Errorf("%s: %w", job.Output, err)
