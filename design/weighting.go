@@ -581,3 +581,11 @@ func joinOr(s []string) string {
 	}
 	return out
 }
+
+// Name is the curve's usual name: "A-weighting", "weighting Wk".
+func (w *WeightingInfo) Name() string {
+	if len(w.Curve) == 1 {
+		return w.Curve + "-weighting"
+	}
+	return "weighting " + w.Curve
+}

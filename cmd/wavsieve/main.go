@@ -52,6 +52,8 @@ Usage:
 Commands:
 %s
 Run 'wavsieve <command> --help' for a command's flags and examples.
+Run 'wavsieve help weighting' for the standard weightings (A, C, Z; Wb..Wm):
+weighted levels from a file are no sound level meter reading.
 
 Exit codes: 0 done, 1 failed, 2 usage error.
 `
@@ -63,6 +65,9 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	switch args[0] {
 	case "-h", "--help", "help":
+		if args[0] == "help" && len(args) > 1 {
+			return runHelpTopic(args[1], stdout, stderr)
+		}
 		fmt.Fprintf(stdout, topUsage, commandList())
 		return exitOK
 	}
