@@ -289,3 +289,21 @@ func TestWeightingChainAndErrors(t *testing.T) {
 		})
 	}
 }
+
+// TestClass1At20kHz: the 20 kHz row of IEC 61672-1:2013 Table 3 (exact
+// 19952.6 Hz, class 1 limits +3.0 dB / open below) is met at any rate
+// that puts it below the Nyquist frequency, from 39.9 kHz up.
+func TestClass1At20kHz(t *testing.T) {
+	for _, curve := range []string{"A", "C"} {
+		for _, rate := range []float64{39910, 40000, 44100} {
+			w := designCurve(t, curve, rate).Stages[0].Weighting
+			if w.Class1UpToHz < 19952 || w.Class != 1 {
+				t.Errorf("%s at %g Hz: class %d, class 1 up to %g Hz", curve, rate, w.Class, w.Class1UpToHz)
+			}
+		}
+		// Below 39.9 kHz the row lies above Nyquist and cannot be met.
+		if w := designCurve(t, curve, 32000).Stages[0].Weighting; w.Class1UpToHz > 16000 {
+			t.Errorf("%s at 32 kHz: class 1 up to %g Hz", curve, w.Class1UpToHz)
+		}
+	}
+}
