@@ -246,9 +246,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 	}
 	if o.asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "verify", err, "")
 		}
 	} else {
@@ -297,7 +295,7 @@ type manifestPair struct {
 func readManifest(name string) ([]manifestPair, error) {
 	rec, err := runrecord.Read(name)
 	if err != nil {
-		return nil, err
+		return nil, wavio.PathError(name, err)
 	}
 	var files []manifestPair
 	for _, f := range rec.Files {
