@@ -46,11 +46,11 @@ type verifyDoc struct {
 		// DesignRange is the design across the reading's resolution, the
 		// range the verdict used.
 		DesignRange *verify.Pair `json:"design_range_db"`
-		MeasuredDB  *float64 `json:"measured_db"`
-		LimitDB     *float64 `json:"limit_db"`
-		MarginDB    *float64 `json:"margin_db"`
-		Verdict     string   `json:"verdict"`
-		Reason      string   `json:"reason"`
+		MeasuredDB  *float64     `json:"measured_db"`
+		LimitDB     *float64     `json:"limit_db"`
+		MarginDB    *float64     `json:"margin_db"`
+		Verdict     string       `json:"verdict"`
+		Reason      string       `json:"reason"`
 	} `json:"checks"`
 }
 
