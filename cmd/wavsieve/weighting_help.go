@@ -1,17 +1,5 @@
 package main
 
-import (
-	"fmt"
-	"io"
-	"sort"
-	"strings"
-)
-
-// helpTopics are the texts of 'wavsieve help TOPIC'.
-var helpTopics = map[string]string{
-	"weighting": weightingHelp,
-}
-
 const weightingHelp = `Standard weightings
 
 A weighting stage filters with a curve a standard defines, instead of a
@@ -50,18 +38,3 @@ refused.
 Caution:
 ` + weightingCaution + `
 `
-
-// runHelpTopic prints a help topic, or the list of topics.
-func runHelpTopic(topic string, stdout, stderr io.Writer) int {
-	if t, ok := helpTopics[strings.ToLower(topic)]; ok {
-		fmt.Fprint(stdout, t)
-		return exitOK
-	}
-	var names []string
-	for k := range helpTopics {
-		names = append(names, k)
-	}
-	sort.Strings(names)
-	fmt.Fprintf(stderr, "wavsieve help: no topic %q; topics: %s\n", topic, strings.Join(names, ", "))
-	return exitUsage
-}
