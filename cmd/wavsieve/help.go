@@ -19,7 +19,7 @@ func helpTopics() []helpTopic {
 		{"spec", "the filter spec file: every key, its unit and an example", specHelp},
 		{"json", "the JSON documents the commands print with --json", func() string { return jsonHelp }},
 		{"exit-codes", "what each exit code means", func() string { return exitHelp }},
-		{"weighting", "the standard weightings A, C, Z and Wb ... Wm, and their caution", func() string { return weightingHelp }},
+		{"weighting", "the standard weightings (A, C, Z; Wb..Wm) and their accuracy", func() string { return weightingHelp }},
 	}
 }
 
@@ -101,11 +101,10 @@ var specFamilies = []specFamily{
   warning: it also removes much of the signal.
     {"family": "notch", "fundamental_hz": 50, "harmonics": 7, "bandwidth_hz": 2}
     {"family": "notch", "fundamental_hz": 60, "harmonics": 7, "odd_harmonics_only": true, "q": 50}`},
-	{"weighting", `weighting: the curve a standard defines, given by curve alone: A, C or
-  Z of IEC 61672-1:2013, or Wb, Wc, Wd, We, Wf, Wh, Wj, Wk or Wm of
-  ISO 8041-1:2017. No other keys; causal only (zero_phase is refused).
-  Weighted levels from a file are no sound level meter reading; see
-  'wavsieve help weighting'.
+	{"weighting", `weighting: a curve a standard defines, at the file's rate: curve "A",
+  "C" or "Z" (IEC 61672-1) or "Wb", "Wc", "Wd", "We", "Wf", "Wh", "Wj",
+  "Wk", "Wm" (ISO 8041-1). No other keys; causal only. See 'wavsieve help
+  weighting'. Weighted levels from a file are no sound level meter reading.
     {"family": "weighting", "curve": "A"}`},
 }
 
@@ -167,8 +166,7 @@ Stage keys (units in brackets):
   q               [ratio] notch only: constant quality factor instead of
                   bandwidth_hz (width = centre / q), e.g. 30
   odd_harmonics_only  true or false, notch only: notch harmonics 1, 3, 5...
-  curve           weighting only: A, C, Z (IEC 61672-1) or Wb, Wc, Wd, We,
-                  Wf, Wh, Wj, Wk, Wm (ISO 8041-1)
+  curve           weighting only: A, C, Z, Wb, Wc, Wd, We, Wf, Wh, Wj, Wk or Wm
 
 A frequency is a number, or an array of one or two numbers. Every edge must
 lie below the Nyquist frequency (half the sample rate) of each file the spec
@@ -194,11 +192,6 @@ wavsieve design --json
                "zeros": [[re, im], ...], "poles": [[re, im], ...], "gain",
                "sections": [[b0, b1, b2, a0, a1, a2], ...],
                "design_edges_hz", "notch_hz",
-               "weighting": {"curve", "standard", "method",
-                 "max_deviation_from_analog_db", "max_deviation_from_table_db",
-                 "class", "class1_up_to_hz", "caution", ...} (weighting only),
-               "mask": [{"nominal", "frequency_hz", "table_db", "lower_db",
-                 "upper_db", "designed_db", "within", "source"}] (A, C, Z),
                "checks": [{"frequency_hz", "kind", "designed_db", "limit_db",
                            "margin_db", "exact"}],
                "spec": {the stage as given}}],

@@ -1,5 +1,6 @@
 package main
 
+// weightingHelp is the text of 'wavsieve help weighting'.
 const weightingHelp = `Standard weightings
 
 A weighting stage filters with a curve a standard defines, instead of a
