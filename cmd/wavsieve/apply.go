@@ -435,7 +435,7 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 			failed++
 		} else {
 			for _, st := range filt.Stages {
-				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Curve: st.Spec.Curve, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 			}
 		}
 		files = append(files, r)
@@ -474,6 +474,9 @@ func stageLine(s process.StageSummary) string {
 	what := s.Family
 	if s.Response != "" {
 		what += " " + s.Response
+	}
+	if s.Curve != "" {
+		what += " " + s.Curve
 	}
 	var e []string
 	for _, hz := range s.EdgesHz {
