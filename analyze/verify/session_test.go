@@ -249,8 +249,8 @@ func TestNoContentBelow900Hz(t *testing.T) {
 
 func TestToneProbe(t *testing.T) {
 	const rate = 8000
-	// The tone probe's tolerance against the design: the issue of
-	// verification asks for 0.05 dB wherever the design is above -100 dB.
+	// The tone probe's tolerance against the design, a requirement of this
+	// project: 0.05 dB wherever the design is above -100 dB (float output).
 	const toneTolDB = 0.05
 	float := wavio.Format{SampleRate: rate, Channels: 1, Bits: 32, Encoding: wavio.Float}
 	t.Run("elliptic stopband edge", func(t *testing.T) {
