@@ -115,6 +115,14 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		fmt.Fprintf(out, "done by more than one share: %s\n", in)
 	}
 	if len(g.Missing) > 0 {
+		const shown = 10
+		for i, in := range g.Missing {
+			if i == shown {
+				fmt.Fprintf(out, "missing: ... and %d more (all of them in gather --json)\n", len(g.Missing)-shown)
+				break
+			}
+			fmt.Fprintf(out, "missing: %s\n", in)
+		}
 		fmt.Fprintf(out, "%d inputs missing; redo them with:\n", len(g.Missing))
 		var idx []string
 		for _, r := range g.Resubmit {
