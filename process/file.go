@@ -663,7 +663,7 @@ func describe(f *design.Filter) string {
 	var parts []string
 	for _, st := range f.Stages {
 		s := fmt.Sprintf("%s %s order %d", st.Family, st.Response, st.Order)
-		if st.Family == design.Notch {
+		if st.Form == design.FormNotch {
 			s = fmt.Sprintf("notch x%d from %g Hz", len(st.NotchHz), st.NotchHz[0])
 		} else {
 			var e []string
