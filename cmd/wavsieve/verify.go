@@ -54,7 +54,8 @@ probe at -20 dBFS with the rate, channels and sample format of --input (or
 design, zero-phase or not, output format and dither) in a temporary folder,
 and measured. Use it where a recording has no energy at an edge.
 
---manifest takes the spec and the files from the manifest apply wrote, and
+--manifest takes the spec and the files from the record apply wrote (its
+JSON or CSV, or the output folder, whose share records it merges), and
 verifies every file it records as done (or only --input's entry); the
 paths are as apply recorded them, so run verify from where apply ran.
 
@@ -144,7 +145,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	o.sf.register(fs)
 	fs.StringVarP(&o.input, "input", "i", "", "the run's input WAV `file` (with --probe: the file whose rate, channels and format to probe)")
 	fs.StringVarP(&o.output, "output", "o", "", "the run's output WAV `file`")
-	fs.StringVar(&o.manifest, "manifest", "", "take the spec and the files from apply's JSON manifest `file`")
+	fs.StringVar(&o.manifest, "manifest", "", "take the spec and the files from apply's record `file` (JSON or CSV) or output folder")
 	fs.BoolVar(&o.probe, "probe", false, "verify the chain with a noise probe instead of the recording")
 	fs.IntVar(&o.rate, "rate", 0, "with --probe and no --input: the sample rate in `Hz`")
 	fs.StringVar(&o.channels, "channels", "", "check only these channels, counted from 1 (`list` such as 1,3), as apply --channels filtered")
