@@ -170,6 +170,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	// The record of the run: given by --manifest, or in the output
 	// folder, one per share when the inputs are shared out.
 	base := o.manifest
+	if base != "" && popt.Shards > 0 {
+		base += fmt.Sprintf(".%d-of-%d", popt.Shard, popt.Shards)
+	}
 	if base == "" {
 		dir := popt.OutputDir
 		if dir == "" {
