@@ -47,8 +47,9 @@ is skipped only when its digest matches, and refused otherwise (give
 
 --shard K/N keeps every N-th input of the sorted list, starting with the
 K-th, so that N machines given the same command share an archive: in a
-Slurm array, --shard $((SLURM_ARRAY_TASK_ID+1))/$SLURM_ARRAY_TASK_COUNT;
-in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
+Slurm array of N tasks, --shard $((SLURM_ARRAY_TASK_ID+1))/N (N written
+out, so that resubmitting one task keeps the shares); in a Kubernetes
+indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
 share writes its own record, wavsieve-manifest.K-of-N.json, holding the
 whole input list; 'wavsieve gather DIR' merges them and lists what is
 missing.

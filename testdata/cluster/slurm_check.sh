@@ -12,7 +12,8 @@
 #
 # Slurm runs with munge authentication, no cgroups (proctrack/linuxproc,
 # task/none), its state, logs and sockets under a temporary folder, and
-# ports 16817-16818. The daemons it starts are stopped at the end.
+# two ports of its own (from 20000). The daemons it starts are stopped at
+# the end.
 #
 # Where slurmctld, slurmd, munged or sbatch are missing they are installed
 # with apt-get when run as root (Debian's slurmctld, slurmd, munge and
@@ -63,13 +64,15 @@ for _ in $(seq 50); do [ -s "$work/munge/munged.pid" ] && break; sleep 0.1; done
 pids+=("$(cat "$work/munge/munged.pid")")
 
 host=$(hostname -s)
+# Ports of its own, so that a Slurm already running here is not disturbed.
+port=$((20000 + $$ % 10000 * 2))
 user=$(id -un)
 mkdir -p "$work/slurm/state" "$work/slurm/spool"
 cat >"$work/slurm/slurm.conf" <<CONF
 ClusterName=wavsieve-check
 SlurmctldHost=$host(127.0.0.1)
-SlurmctldPort=16817
-SlurmdPort=16818
+SlurmctldPort=$port
+SlurmdPort=$((port + 1))
 SlurmUser=$user
 SlurmdUser=$user
 AuthType=auth/munge
