@@ -187,7 +187,16 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	defer stop()
 	// Runs with one record are serialised from planning to the record's
 	// writing, so that the record always describes the files on disk.
+	// undo takes back the folder the lock made when the run stops before
+	// filtering anything.
+	undo := func() {}
 	if !o.dryRun {
+		if _, err := os.Stat(filepath.Dir(base)); err != nil {
+			undo = func() {
+				os.Remove(runrecord.LockPath(base))
+				os.Remove(filepath.Dir(base))
+			}
+		}
 		unlock, err := runrecord.Lock(ctx, base, func() {
 			fmt.Fprintf(stderr, "wavsieve apply: waiting for another run that writes the record %s.json to finish\n", base)
 		})
@@ -198,6 +207,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	rec, err := runrecord.Load(base)
 	if err != nil {
+		undo()
 		return report(stderr, "apply", err, "")
 	}
 	// A share also trusts the record that gather made of earlier shares.
@@ -218,6 +228,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	items, err := process.PlanInputs(found, popt)
 	if err != nil {
+		undo()
 		return report(stderr, "apply", err, "")
 	}
 	if o.dryRun {
