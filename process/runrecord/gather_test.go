@@ -7,6 +7,8 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"github.com/wavsieve/wavsieve/process"
 )
 
 // writeShare writes the record of share k of n over inputs, with a row
@@ -25,7 +27,7 @@ func writeShare(t *testing.T, dir string, k, n int, inputs []string, st map[stri
 		if s == "" {
 			s = StatusDone
 		}
-		f := File{Input: in, Output: filepath.Join(dir, in), Status: s}
+		f := row(process.FileResult{Input: in, Output: filepath.Join(dir, in), Status: s})
 		if s == StatusFailed {
 			f.Error = in + ": broken"
 		}
@@ -100,7 +102,7 @@ func TestGather(t *testing.T) {
 		writeShare(t, dir, 2, 2, inputs, nil)
 		// Share 2's record also claims a, which is share 1's.
 		r, _ := Read(Base(dir, 2, 2) + ".json")
-		r.Files = append(r.Files, File{Input: "a.wav", Output: filepath.Join(dir, "a.wav"), Status: StatusDone})
+		r.Files = append(r.Files, row(process.FileResult{Input: "a.wav", Output: filepath.Join(dir, "a.wav"), Status: StatusDone}))
 		r.Write(Base(dir, 2, 2))
 		g, err := Gather(context.Background(), dir)
 		if err != nil {
