@@ -85,6 +85,8 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 		json.Unmarshal(rows, &whole)
 		doc := struct {
+			Kind     string               `json:"kind"`
+			Version  string               `json:"version"`
 			Files    json.RawMessage      `json:"files"`
 			Missing  []string             `json:"missing"`
 			Failed   []runrecord.Failure  `json:"failed"`
@@ -92,7 +94,7 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			Resubmit []runrecord.Resubmit `json:"resubmit"`
 			Twice    []string             `json:"done_twice,omitempty"`
 			Record   string               `json:"record"`
-		}{whole.Files, g.Missing, g.Failed, g.Shares, g.Resubmit, g.Twice, base + ".json"}
+		}{"wavsieve-gather", g.Record.Version, whole.Files, g.Missing, g.Failed, g.Shares, g.Resubmit, g.Twice, base + ".json"}
 		if doc.Resubmit == nil {
 			doc.Resubmit = []runrecord.Resubmit{}
 		}
