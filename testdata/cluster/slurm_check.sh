@@ -49,6 +49,7 @@ stop() {
   rm -rf "$work"
 }
 trap stop EXIT
+trap "exit 130" INT TERM
 
 go build -o "$work/bin/wavsieve" ./cmd/wavsieve
 export PATH="$work/bin:$PATH"
