@@ -124,9 +124,11 @@ fail=0
 check() { if eval "$2"; then echo "ok    $1"; else echo "FAIL  $1"; fail=1; fi; }
 
 # The archive: files at mixed rates in two folders; the same archive for
-# each run.
+# each run (hard links: wavsieve never writes its inputs).
 n=24
 go run ./testdata/cluster/gen -dir "$work/archive" -n $n -seconds 40
+digest() { (cd "$work/archive" && find . -type f | sort | xargs sha256sum | sha256sum); }
+inputs0=$(digest)
 job="$repo/samples/cluster/wavsieve-array.sbatch"
 
 # sbatch runs the script as printed, from a folder holding archive/ and
@@ -135,7 +137,7 @@ job="$repo/samples/cluster/wavsieve-array.sbatch"
 submit() { # folder, extra sbatch flags...
   local dir=$1; shift
   mkdir -p "$dir"
-  cp -r "$work/archive" "$dir/archive"
+  cp -rl "$work/archive" "$dir/archive"
   cp samples/specs/rumble-and-hum.json "$dir/"
   local t0 t1 id
   t0=$(date +%s.%N)
@@ -162,7 +164,7 @@ check "the %2 limit held: at most $most4 of the 4 tasks ran at once, and 2 did" 
 
 # The same command on one machine, no shares.
 mkdir -p "$work/single"
-cp -r "$work/archive" "$work/single/archive"
+cp -rl "$work/archive" "$work/single/archive"
 cp samples/specs/rumble-and-hum.json "$work/single/"
 (cd "$work/single" && wavsieve apply --spec rumble-and-hum.json --zero-phase --recursive --workers 1 --dither-seed 7 --no-progress --output out/archive archive 2>/dev/null)
 
@@ -211,7 +213,7 @@ check "and the outputs are still those of one machine" "[ $differ = 0 ]"
 # The Kubernetes indexed Job's command, as printed, for each index.
 kcmd=$(grep -o '"sh", "-c", "[^"]*"' samples/cluster/wavsieve-indexed-job.yaml | sed 's/^"sh", "-c", "//; s/"$//')
 mkdir -p "$work/k8s"
-cp -r "$work/archive" "$work/k8s/archive"
+cp -rl "$work/archive" "$work/k8s/archive"
 cp samples/specs/rumble-and-hum.json "$work/k8s/"
 for i in 0 1 2 3; do (cd "$work/k8s" && JOB_COMPLETION_INDEX=$i sh -c "$kcmd" 2>/dev/null) || true; done
 (cd "$work/k8s" && wavsieve gather out/archive >/dev/null 2>&1) && k8s=yes || k8s=no
@@ -223,6 +225,8 @@ check "the indexed Job's command for indexes 0-3 gives the single run's outputs"
 block() { awk -v name="\`$1\`" 'index($0, name) && /:$/ { f = 1; next } f == 1 && /^```/ { f = 2; next } f == 2 && /^```$/ { exit } f == 2 { print }' README.md; }
 check "README prints samples/cluster/wavsieve-array.sbatch as it is" "diff <(block samples/cluster/wavsieve-array.sbatch) '$job' >/dev/null"
 check "README prints samples/cluster/wavsieve-indexed-job.yaml as it is" "diff <(block samples/cluster/wavsieve-indexed-job.yaml) samples/cluster/wavsieve-indexed-job.yaml >/dev/null"
+
+check "the inputs are unchanged" "[ \"\$(digest)\" = \"\$inputs0\" ]"
 
 fps1=$(calc "$n / $s1")
 fps4=$(calc "$n / $s4")
