@@ -254,35 +254,43 @@ func BandOmega(b int, x float64) float64 {
 // the stopband (no maximum attenuation there). At the band edges both
 // rows of Table 1 apply: the response must lie in [-5.3, -1.2].
 func Class1Limits(b int, fm, f float64) (lo, hi float64) {
-	omega := f / fm
-	if omega < 1 {
-		omega = 1 / omega
+	return newClass1(b).limits(f / fm)
+}
+
+// class1 evaluates the class 1 limits of one fraction, with the log
+// breakpoint frequencies worked out once.
+type class1 struct {
+	lw [10]float64 // ln Omega of each row of class1Table
+}
+
+func newClass1(b int) *class1 {
+	c := &class1{}
+	for i, r := range class1Table {
+		c.lw[i] = math.Log(BandOmega(b, r.X))
 	}
-	lw := math.Log(omega)
-	edge := math.Log(BandOmega(b, 0.5))
+	return c
+}
+
+// limits returns the limits on the relative response at Omega = f/fm.
+func (c *class1) limits(omega float64) (lo, hi float64) {
+	lw := math.Abs(math.Log(omega))
 	const tiny = 1e-12
-	interp := func(rows []int, val func(int) float64) float64 {
-		for k := 0; k+1 < len(rows); k++ {
-			a, c := math.Log(BandOmega(b, class1Table[rows[k]].X)), math.Log(BandOmega(b, class1Table[rows[k+1]].X))
-			if lw <= c+tiny {
-				if c-a < tiny {
-					return val(rows[k+1])
-				}
-				t := math.Max(0, (lw-a)/(c-a))
-				return val(rows[k]) + t*(val(rows[k+1])-val(rows[k]))
+	interp := func(first, last int, val func(int) float64) float64 {
+		for k := first; k < last; k++ {
+			a, b := c.lw[k], c.lw[k+1]
+			if lw <= b+tiny {
+				t := math.Max(0, (lw-a)/(b-a))
+				return val(k) + t*(val(k+1)-val(k))
 			}
 		}
-		return val(rows[len(rows)-1])
+		return val(last)
 	}
-	inside := []int{0, 1, 2, 3, 4}
-	outside := []int{5, 6, 7, 8, 9}
+	edge := c.lw[4]
 	switch {
 	case lw < edge-tiny:
-		maxA := interp(inside, func(i int) float64 { return class1Table[i].MaxDB })
-		return -maxA, 0.4
+		return -interp(0, 4, func(i int) float64 { return class1Table[i].MaxDB }), 0.4
 	case lw > edge+tiny:
-		minA := interp(outside, func(i int) float64 { return class1Table[i].MinDB })
-		return math.Inf(-1), -minA
+		return math.Inf(-1), -interp(5, 9, func(i int) float64 { return class1Table[i].MinDB })
 	default:
 		return -class1Table[4].MaxDB, -class1Table[5].MinDB
 	}
@@ -355,14 +363,18 @@ func DesignBand(bd Band, rate float64) (Designed, error) {
 		return Designed{}, &BandError{Fraction: bd.Fraction, MidbandHz: bd.NominalHz, Msg: fmt.Sprintf("the 1/%d-octave band %s Hz reaches %.6g Hz, at or above the Nyquist frequency %g Hz of the %g Hz rate; use a lower band or a higher sample rate", bd.Fraction, bd.Label, bd.UpperHz, nyq, rate)}
 	}
 	grid := BandGrid(bd, rate)
+	lim := newClass1(bd.Fraction)
+	los, his := make([]float64, len(grid)), make([]float64, len(grid))
+	for i, f := range grid {
+		los[i], his[i] = lim.limits(f / bd.ExactHz)
+	}
 	for n := minBandOrder; n <= maxBandOrder; n++ {
 		z := bandZPK(bd, rate, n)
 		one := &Filter{SampleRate: rate, Stages: []Designed{{ZPK: z}}}
 		ok := true
-		for _, f := range grid {
-			lo, hi := Class1Limits(bd.Fraction, bd.ExactHz, f)
+		for i, f := range grid {
 			r := one.MagnitudeDB(f)
-			if !(r >= lo+bandMarginDB && r <= hi-bandMarginDB) {
+			if !(r >= los[i]+bandMarginDB && r <= his[i]-bandMarginDB) {
 				ok = false
 				break
 			}
@@ -397,7 +409,7 @@ func bandZPK(bd Band, rate float64, n int) ZPK {
 func cmplxAbs(h complex128) float64 { return math.Hypot(real(h), imag(h)) }
 
 // BandGrid is the dense frequency grid the band design is checked on:
-// 400 points per octave, log-spaced, from the lowest breakpoint of the
+// 100 points per octave, log-spaced, from the lowest breakpoint of the
 // mask (or 0.1 Hz) to just below the Nyquist frequency, plus every
 // breakpoint and the band edges themselves.
 func BandGrid(bd Band, rate float64) []float64 {
@@ -405,7 +417,7 @@ func BandGrid(bd Band, rate float64) []float64 {
 	lo := math.Max(bd.ExactHz/BandOmega(bd.Fraction, 4)/1.5, 0.1)
 	hi := math.Min(bd.ExactHz*BandOmega(bd.Fraction, 4)*1.5, nyq*0.9999)
 	var g []float64
-	n := int(math.Ceil(400 * math.Log2(hi/lo)))
+	n := int(math.Ceil(100 * math.Log2(hi/lo)))
 	for i := 0; i <= n; i++ {
 		g = append(g, lo*math.Pow(hi/lo, float64(i)/float64(n)))
 	}
