@@ -3,7 +3,6 @@ package design
 import (
 	"bytes"
 	"encoding/json"
-	"fmt"
 )
 
 // Families, responses and Bessel normalisations accepted in a Stage.
@@ -71,7 +70,7 @@ type Stage struct {
 	BesselNorm    string  `json:"bessel_norm,omitempty"`
 
 	// Notch stages: a second-order notch at FundamentalHz and at its
-	// harmonics up to number Harmonics (0: every harmonic below Nyquist),
+	// harmonics up to number Harmonics (0: those below DefaultNotchLimitHz),
 	// each BandwidthHz wide at -3 dB, or of constant quality factor Q
 	// (bandwidth = centre / Q) when Q is set instead.
 	FundamentalHz float64 `json:"fundamental_hz,omitempty"`
@@ -97,21 +96,27 @@ type Spec struct {
 
 // ParseSpec reads a spec file: either one stage object, or an object
 // with a "stages" array. Unknown keys are errors, so that a misspelt key
-// is not silently ignored.
+// is not silently ignored. A syntax error, an unknown key or a value of
+// the wrong type is a *SpecError with its line and column. A leading
+// UTF-8 byte-order mark is ignored.
 func ParseSpec(data []byte) (Spec, error) {
+	data = bytes.TrimPrefix(data, utf8BOM)
+	if err := locateSpecError(data); err != nil {
+		return Spec{}, err
+	}
 	var probe map[string]json.RawMessage
 	if err := json.Unmarshal(data, &probe); err != nil {
-		return Spec{}, fmt.Errorf("design: spec is not a JSON object: %w", err)
+		return Spec{}, errorf(ErrInvalid, "spec is not a JSON object: %w", err)
 	}
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
 	if _, ok := probe["stages"]; ok {
 		var s Spec
 		if err := dec.Decode(&s); err != nil {
-			return Spec{}, fmt.Errorf("design: invalid spec: %w", err)
+			return Spec{}, errorf(ErrInvalid, "invalid spec: %w", err)
 		}
 		if len(s.Stages) == 0 {
-			return Spec{}, fmt.Errorf("design: invalid spec: \"stages\" is empty")
+			return Spec{}, errorf(ErrInvalid, "invalid spec: \"stages\" is empty")
 		}
 		return s, nil
 	}
@@ -120,7 +125,7 @@ func ParseSpec(data []byte) (Spec, error) {
 		ZeroPhase bool `json:"zero_phase,omitempty"`
 	}
 	if err := dec.Decode(&one); err != nil {
-		return Spec{}, fmt.Errorf("design: invalid spec: %w", err)
+		return Spec{}, errorf(ErrInvalid, "invalid spec: %w", err)
 	}
 	return Spec{Stages: []Stage{one.Stage}, ZeroPhase: one.ZeroPhase}, nil
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -140,7 +139,10 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	f, err := design.Design(spec, *rate)
 	if err != nil {
-		return report(stderr, "design", err, designHint(err))
+		return report(stderr, "design", sf.valueError(err), designHint(err))
+	}
+	for _, w := range f.Warnings() {
+		fmt.Fprintf(stderr, "wavsieve design: warning: %s\n", w)
 	}
 	if *plot != "" {
 		if err := writePlot(*plot, f); err != nil {
@@ -149,9 +151,7 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	res := designDocument(f, source)
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(res); err != nil {
+		if err := writeJSON(stdout, res, true); err != nil {
 			return report(stderr, "design", err, "")
 		}
 		return exitOK
@@ -164,10 +164,10 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 }
 
 func designHint(err error) string {
-	switch s := err.Error(); {
-	case strings.Contains(s, "Nyquist"):
+	switch design.KindOf(err) {
+	case design.ErrAboveNyquist:
 		return "every edge must lie below half the sample rate of the file it is applied to"
-	case strings.Contains(s, "above the limit"):
+	case design.ErrOrderLimit:
 		return "a wider transition band lowers the order fastest"
 	}
 	return ""

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"os"
 	"strconv"
@@ -8,6 +9,7 @@ import (
 
 	"github.com/spf13/pflag"
 	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
 // specFlags are the flags that describe a filter on the command line, for
@@ -34,7 +36,7 @@ type specFlags struct {
 
 func (s *specFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&s.file, "spec", "", "read the filter spec from a JSON `file`")
-	fs.StringVar(&s.family, "family", "", "filter `family`: butterworth, chebyshev1, chebyshev2, elliptic, bessel or notch")
+	fs.StringVar(&s.family, "family", "", "filter `family`: "+strings.Join(design.Families(), ", "))
 	fs.StringVar(&s.response, "response", "", "`type`: lowpass, highpass, bandpass or bandstop")
 	fs.IntVar(&s.order, "order", 0, "prototype `order` (a band response has twice as many poles); omit for the minimum order from --passband/--stopband")
 	fs.StringVar(&s.cutoff, "cutoff", "", "critical frequency in Hz, or two as `lo,hi` for a band (with --order)")
@@ -44,7 +46,7 @@ func (s *specFlags) register(fs *pflag.FlagSet) {
 	fs.Float64Var(&s.attenuation, "attenuation", 0, "smallest stopband attenuation in `dB`")
 	fs.StringVar(&s.besselNorm, "bessel-norm", "", "Bessel normalisation: phase (default), delay or magnitude")
 	fs.Float64Var(&s.fundamental, "hum", 0, "notch: mains fundamental in `Hz` (for example 50 or 60)")
-	fs.IntVar(&s.harmonics, "harmonics", 0, "notch: highest harmonic `number` to notch (0: all below Nyquist)")
+	fs.IntVar(&s.harmonics, "harmonics", 0, "notch: highest harmonic `number` to notch (default: every harmonic below 1000 Hz)")
 	fs.Float64Var(&s.bandwidth, "notch-width", 0, "notch: -3 dB width of each notch in `Hz`")
 	fs.Float64Var(&s.q, "notch-q", 0, "notch: constant quality factor `Q` (width = centre / Q) instead of --notch-width")
 	fs.BoolVar(&s.oddOnly, "odd-only", false, "notch: odd harmonics only")
@@ -66,9 +68,13 @@ func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
 		}
 		b, err := os.ReadFile(s.file)
 		if err != nil {
-			return design.Spec{}, err
+			return design.Spec{}, wavio.PathError(s.file, err)
 		}
 		sp, err := design.ParseSpec(b)
+		var se *design.SpecError
+		if errors.As(err, &se) {
+			return design.Spec{}, fmt.Errorf("%s:%d:%d: %s", s.file, se.Line, se.Column, se.Msg)
+		}
 		if err != nil {
 			return design.Spec{}, fmt.Errorf("%s: %w", s.file, err)
 		}
@@ -79,6 +85,9 @@ func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
 	}
 	if s.family == "" {
 		return design.Spec{}, usagef("no filter given: use --spec FILE, or --family with its flags")
+	}
+	if s.cutoff != "" && s.order == 0 && s.family != design.Notch {
+		return design.Spec{}, usagef("--cutoff needs --order N, the prototype order (for example --order 4); or, for the minimum order, give --passband, --stopband, --ripple and --attenuation instead of --cutoff")
 	}
 	st := design.Stage{
 		Family: s.family, Response: s.response, Order: s.order,
@@ -115,4 +124,29 @@ func parseEdges(flag, v string) (design.Edges, error) {
 		e[i] = f
 	}
 	return e, nil
+}
+
+// specKeyFlags maps the spec keys that have a flag to it.
+var specKeyFlags = map[string]string{
+	"order": "--order", "cutoff_hz": "--cutoff", "passband_hz": "--passband", "stopband_hz": "--stopband",
+	"ripple_db": "--ripple", "attenuation_db": "--attenuation", "fundamental_hz": "--hum",
+	"harmonics": "--harmonics", "bandwidth_hz": "--notch-width", "q": "--notch-q",
+}
+
+// valueError restates a design error about one value in the words the
+// user gave it in: for a spec given by flags, as a usage error naming
+// the flag (exit 2); for a spec file, naming the file and the key. Other
+// errors pass unchanged.
+func (s *specFlags) valueError(err error) error {
+	ve, ok := design.ValueOf(err)
+	if !ok {
+		return err
+	}
+	if s.file != "" {
+		return fmt.Errorf("%s: %s value %s %s", s.file, ve.Key, ve.Quantity(), ve.Detail)
+	}
+	if f, ok := specKeyFlags[ve.Key]; ok {
+		return usagef("%s %s %s", f, ve.Quantity(), ve.Detail)
+	}
+	return err
 }
