@@ -113,6 +113,14 @@ type bandsChannel struct {
 	AtFullScale int64 `json:"samples_at_full_scale,omitempty"`
 }
 
+// bandFilter says how one band was filtered: the order of its
+// Butterworth prototype and the rate it ran at after decimation.
+type bandFilter struct {
+	MidbandHz float64 `json:"midband_hz"`
+	Order     int     `json:"order"`
+	RateHz    float64 `json:"rate_hz"`
+}
+
 type bandsInterval struct {
 	StartS   float64        `json:"start_s"`
 	EndS     float64        `json:"end_s"`
@@ -129,6 +137,7 @@ type bandsFile struct {
 	Reference  string          `json:"reference"`
 	Weighting  string          `json:"weighting"`
 	Intervals  []bandsInterval `json:"intervals,omitempty"`
+	Filters    []bandFilter    `json:"filters,omitempty"`
 	Plot       string          `json:"plot,omitempty"`
 	Warnings   []string        `json:"warnings,omitempty"`
 	Error      string          `json:"error,omitempty"`
@@ -374,8 +383,10 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 	}
 	whole, ivs := bank.Result()
 	bands := bank.Bands()
-	for _, b := range bands {
+	rates := bank.Rates()
+	for i, b := range bands {
 		bf.labels = append(bf.labels, b.Label)
+		bf.Filters = append(bf.Filters, bandFilter{MidbandHz: b.NominalHz, Order: bank.Filters()[i].Order, RateHz: rates[i]})
 	}
 	bf.Frames = whole.Frames
 	bf.DurationS = float64(whole.Frames) / bf.SampleRate
