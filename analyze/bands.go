@@ -245,7 +245,7 @@ func NewBandBank(o BankOptions) (*BandBank, error) {
 			continue
 		}
 		if !(bd.UpperHz < o.SampleRate/2) {
-			return nil, &design.BandError{Fraction: o.Fraction, MidbandHz: bd.NominalHz, Msg: fmt.Sprintf("the 1/%d-octave band %s Hz reaches %.6g Hz, above the Nyquist frequency %g Hz; lower the upper end of the range", o.Fraction, bd.Label, bd.UpperHz, o.SampleRate/2)}
+			return nil, fmt.Errorf("analyze: the 1/%d-octave band %s Hz reaches %.6g Hz, above the Nyquist frequency %g Hz; lower the upper end of the range: %w", o.Fraction, bd.Label, bd.UpperHz, o.SampleRate/2, design.ErrAboveNyquist)
 		}
 		bands = append(bands, bd)
 	}

@@ -129,10 +129,10 @@ func BandLabel(hz float64) string {
 // nearest bands.
 func FindBand(b int, hz float64) (Band, error) {
 	if !ValidFraction(b) {
-		return Band{}, &BandError{Fraction: b, MidbandHz: hz, Msg: fmt.Sprintf("unsupported fraction %d: use 1, 2, 3, 6, 12 or 24 (1/b-octave bands)", b)}
+		return Band{}, errorf(ErrUnsupported, "unsupported fraction %d: use 1, 2, 3, 6, 12 or 24 (1/b-octave bands)", b)
 	}
 	if !(hz > 0) || math.IsInf(hz, 0) {
-		return Band{}, &BandError{Fraction: b, MidbandHz: hz, Msg: fmt.Sprintf("invalid midband_hz %g: it must be a positive mid-band frequency", hz)}
+		return Band{}, errorf(ErrInvalid, "invalid midband_hz %g: it must be a positive mid-band frequency", hz)
 	}
 	// Invert the mid-band formula for x and look at the nearest two.
 	e := float64(b) * math.Log(hz/BandReferenceHz) / math.Log(BandG)
@@ -157,18 +157,8 @@ func FindBand(b int, hz float64) (Band, error) {
 			msg += fmt.Sprintf(" %s (exact %.6g Hz)", n.Label, n.ExactHz)
 		}
 	}
-	return Band{}, &BandError{Fraction: b, MidbandHz: hz, Msg: msg}
+	return Band{}, errorf(ErrInvalid, "%s", msg)
 }
-
-// BandError is a band that cannot be found or designed. The CLI tells
-// it apart from other errors with errors.As.
-type BandError struct {
-	Fraction  int
-	MidbandHz float64
-	Msg       string
-}
-
-func (e *BandError) Error() string { return "design: " + e.Msg }
 
 // BandsBetween lists the 1/b-octave bands whose exact mid-band frequency
 // lies in [fromHz, toHz] (each end 1% wide, so nominal values work as
@@ -354,13 +344,14 @@ const (
 	bandEdgeLimit = 0.999
 )
 
-// DesignBand designs the band-pass filter of bd at rate. It fails with a
-// *BandError when the band's upper edge is not below the Nyquist
-// frequency, or when no order up to maxBandOrder meets the mask.
+// DesignBand designs the band-pass filter of bd at rate. It fails with
+// ErrAboveNyquist when the band's upper edge is not below the Nyquist
+// frequency, and with ErrOrderLimit when no order up to maxBandOrder
+// meets the mask.
 func DesignBand(bd Band, rate float64) (Designed, error) {
 	nyq := rate / 2
 	if !(bd.UpperHz < bandEdgeLimit*nyq) {
-		return Designed{}, &BandError{Fraction: bd.Fraction, MidbandHz: bd.NominalHz, Msg: fmt.Sprintf("the 1/%d-octave band %s Hz reaches %.6g Hz, at or above the Nyquist frequency %g Hz of the %g Hz rate; use a lower band or a higher sample rate", bd.Fraction, bd.Label, bd.UpperHz, nyq, rate)}
+		return Designed{}, errorf(ErrAboveNyquist, "the 1/%d-octave band %s Hz reaches %.6g Hz, at or above the Nyquist frequency %g Hz of the %g Hz rate; use a lower band or a higher sample rate", bd.Fraction, bd.Label, bd.UpperHz, nyq, rate)
 	}
 	grid := BandGrid(bd, rate)
 	lim := newClass1(bd.Fraction)
@@ -384,17 +375,51 @@ func DesignBand(bd Band, rate float64) (Designed, error) {
 		}
 		st := Stage{Family: BandFamily, Fraction: bd.Fraction, MidbandHz: bd.NominalHz}
 		d := Designed{
-			Spec: st, Family: BandFamily, Response: Bandpass, Form: FormOrder, Order: n,
+			Spec: st, Family: BandFamily, Response: Bandpass, Form: FormStandard, Order: n,
 			ZPK: z, Sections: ToSections(z), EdgesHz: []float64{bd.LowerHz, bd.UpperHz},
 			Mask: Class1Mask(bd, nyq),
 		}
 		return d, nil
 	}
-	return Designed{}, &BandError{Fraction: bd.Fraction, MidbandHz: bd.NominalHz, Msg: fmt.Sprintf("no band-pass up to order %d meets the class 1 mask for the 1/%d-octave band %s Hz at %g Hz; use a lower band or a higher sample rate", maxBandOrder, bd.Fraction, bd.Label, rate)}
+	return Designed{}, errorf(ErrOrderLimit, "no band-pass up to order %d meets the class 1 mask for the 1/%d-octave band %s Hz at %g Hz; use a lower band or a higher sample rate", maxBandOrder, bd.Fraction, bd.Label, rate)
 }
 
 // BandFamily is the family name of a fractional-octave band stage.
 const BandFamily = "band"
+
+// checkBand validates a band stage: a fraction, a mid-band of its series,
+// and an upper edge below the Nyquist frequency.
+func checkBand(_ *family, st Stage, rate float64) error {
+	if st.Fraction == 0 || st.MidbandHz == 0 {
+		return errorf(ErrInvalid, "invalid spec: a band stage needs fraction (1, 2, 3, 6, 12 or 24) and midband_hz, such as {\"family\": \"band\", \"fraction\": 3, \"midband_hz\": 1000}")
+	}
+	bd, err := FindBand(st.Fraction, st.MidbandHz)
+	if err != nil {
+		return err
+	}
+	if !(bd.UpperHz < bandEdgeLimit*rate/2) {
+		return errorf(ErrAboveNyquist, "the 1/%d-octave band %s Hz reaches %.6g Hz, at or above the Nyquist frequency %g Hz of the %g Hz rate; use a lower band or a higher sample rate", bd.Fraction, bd.Label, bd.UpperHz, rate/2, rate)
+	}
+	return nil
+}
+
+// buildBand designs a band stage (DesignBand) into d.
+func buildBand(_ *family, d *Designed, rate, passes float64) error {
+	if passes != 1 {
+		return errorf(ErrInvalid, "invalid spec: a band filter meets the IEC 61260-1 mask in one causal pass; remove zero_phase (forward-backward would square its response and move its edges to -6 dB)")
+	}
+	bd, err := FindBand(d.Spec.Fraction, d.Spec.MidbandHz)
+	if err != nil {
+		return err
+	}
+	b, err := DesignBand(bd, rate)
+	if err != nil {
+		return err
+	}
+	d.Form, d.Order, d.ZPK, d.Sections, d.EdgesHz, d.Mask = b.Form, b.Order, b.ZPK, b.Sections, b.EdgesHz, b.Mask
+	d.Response = Bandpass
+	return nil
+}
 
 // bandZPK is the order-n Butterworth band-pass of bd at rate with 0 dB
 // at the exact mid-band frequency.

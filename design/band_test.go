@@ -194,9 +194,8 @@ func TestFindBand(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			bd, err := FindBand(tc.b, tc.hz)
 			if tc.err {
-				var be *BandError
-				if !errors.As(err, &be) {
-					t.Fatalf("want a *BandError, got %v", err)
+				if k := KindOf(err); k != ErrInvalid && k != ErrUnsupported {
+					t.Fatalf("want an invalid or unsupported design error, got %v", err)
 				}
 				return
 			}
@@ -301,8 +300,57 @@ func TestBandFractionsDesign(t *testing.T) {
 func TestBandAboveNyquistRefused(t *testing.T) {
 	bd, _ := FindBand(3, 20000)
 	_, err := DesignBand(bd, 44100)
-	var be *BandError
-	if !errors.As(err, &be) {
-		t.Fatalf("20 kHz third at 44.1 kHz: want *BandError, got %v", err)
+	if !errors.Is(err, ErrAboveNyquist) {
+		t.Fatalf("20 kHz third at 44.1 kHz: want ErrAboveNyquist, got %v", err)
+	}
+}
+
+// TestBandStage designs the band family through the spec, as apply and
+// verify do, and checks that the stage carries the class 1 mask and meets
+// it at every point.
+func TestBandStage(t *testing.T) {
+	spec, err := ParseSpec([]byte(`{"family": "band", "fraction": 3, "midband_hz": 1000}`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, rate := range []float64{44100, 48000, 96000} {
+		f, err := Design(spec, rate)
+		if err != nil {
+			t.Fatalf("%g Hz: %v", rate, err)
+		}
+		st := f.Stages[0]
+		if st.Form != FormStandard || st.Response != Bandpass || len(st.Mask) != 17 {
+			t.Fatalf("%g Hz: form %q, response %q, %d mask points; want standard, bandpass, 17", rate, st.Form, st.Response, len(st.Mask))
+		}
+		for _, m := range st.Mask {
+			if r := f.EffectiveDB(m.FrequencyHz); !m.Within(r) {
+				t.Errorf("%g Hz, %s (%.2f Hz): %.3f dB outside [%g, %g]", rate, m.Label, m.FrequencyHz, r, m.LowerDB, m.UpperDB)
+			}
+			if m.Source == "" {
+				t.Errorf("mask point %s without a source", m.Label)
+			}
+		}
+	}
+	for _, tc := range []struct {
+		name, spec string
+		rate       float64
+		kind       ErrorKind
+	}{
+		{"zero phase", `{"family": "band", "fraction": 3, "midband_hz": 1000, "zero_phase": true}`, 48000, ErrInvalid},
+		{"above Nyquist", `{"family": "band", "fraction": 1, "midband_hz": 16000}`, 44100, ErrAboveNyquist},
+		{"not a midband", `{"family": "band", "fraction": 3, "midband_hz": 1100}`, 48000, ErrInvalid},
+		{"bad fraction", `{"family": "band", "fraction": 4, "midband_hz": 1000}`, 48000, ErrUnsupported},
+		{"no midband", `{"family": "band", "fraction": 3}`, 48000, ErrInvalid},
+		{"foreign key", `{"family": "band", "fraction": 3, "midband_hz": 1000, "order": 4}`, 48000, ErrInvalid},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			spec, err := ParseSpec([]byte(tc.spec))
+			if err == nil {
+				_, err = Design(spec, tc.rate)
+			}
+			if KindOf(err) != tc.kind {
+				t.Errorf("got %v (kind %d), want kind %d", err, KindOf(err), tc.kind)
+			}
+		})
 	}
 }

@@ -120,6 +120,16 @@ var families = []family{
 		check: validateNotch, build: buildNotch,
 		cutoff: "none: notches at fundamental_hz and its harmonics",
 	},
+	{
+		name: Weighting, keys: []string{"curve"},
+		check: checkWeighting, build: buildWeighting,
+		cutoff: "none: the curve its standard defines",
+	},
+	{
+		name: BandFamily, keys: []string{"fraction", "midband_hz"},
+		check: checkBand, build: buildBand,
+		cutoff: "none: the band edges of IEC 61260-1 (-3 dB)",
+	},
 }
 
 // classicalKeys are the keys of the classical families (Butterworth,

@@ -84,6 +84,10 @@ type Stage struct {
 	// mid-band frequency is MidbandHz.
 	Fraction  int     `json:"fraction,omitempty"`
 	MidbandHz float64 `json:"midband_hz,omitempty"`
+
+	// Weighting stages: the curve of a standard (IEC 61672-1 A, C, Z;
+	// ISO 8041-1 Wb ... Wm).
+	Curve string `json:"curve,omitempty"`
 }
 
 // Spec is a chain of stages run in order. With ZeroPhase set the chain

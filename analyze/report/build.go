@@ -371,6 +371,8 @@ func specSummary(s design.Spec) string {
 	var parts []string
 	for _, st := range s.Stages {
 		switch {
+		case st.Curve != "":
+			parts = append(parts, "weighting "+st.Curve)
 		case st.Family == design.Notch:
 			parts = append(parts, fmt.Sprintf("notches at %g Hz and harmonics", st.FundamentalHz))
 		case st.Order > 0:

@@ -54,6 +54,11 @@ share writes its own record, wavsieve-manifest.K-of-N.json, holding the
 whole input list; 'wavsieve gather DIR' merges them and lists what is
 missing.
 
+--weighting CURVE adds a standard weighting (A, C, Z; Wb ... Wm) after the
+other stages, or alone ('wavsieve help weighting'). A level computed from
+a weighted file is not a sound level meter's reading: the microphone, its
+calibration and the measuring chain are unknown to wavsieve.
+
 Exit codes: 0 every file done or skipped, 1 some failed, 2 usage error.
 
 Examples:
@@ -64,6 +69,9 @@ Examples:
   wavsieve apply --family elliptic --response lowpass --passband 2000 --stopband 2500 \
       --ripple 0.1 --attenuation 80 --zero-phase --sample-format float32 \
       --output out/logger-lp.wav logger.wav
+
+  # A-weight a folder of 48 kHz recordings (each file at its own rate)
+  wavsieve apply --weighting A --output out/a-weighted recordings/
 
   # see what would be designed for each file, writing nothing
   wavsieve apply --spec hum.json --output out --recursive --dry-run archive/

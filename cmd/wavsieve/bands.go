@@ -575,3 +575,25 @@ func writeBandsPlot(f bandsFile, bands []design.Band, opt bandsOptions) (string,
 	}
 	return name, nil
 }
+
+// printBandStage prints the report of a band stage: its band, its order
+// and its response at each point of the class 1 mask.
+func printBandStage(w io.Writer, f *design.Filter, i int, st design.Designed) {
+	fmt.Fprintf(w, "\nStage %d: 1/%d-octave band %s Hz (IEC 61260-1), Butterworth band-pass of order %d, edges %s Hz, %d sections, %d poles\n",
+		i+1, st.Spec.Fraction, design.BandLabel(st.Spec.MidbandHz), st.Order, joinHz(st.EdgesHz, 2), len(st.Sections), len(st.ZPK.Poles))
+	one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
+	fmt.Fprintf(w, "  %-36s %12s %12s %16s\n", "mask point", "at (Hz)", "designed dB", "class 1 limits")
+	for _, m := range st.Mask {
+		v := one.MagnitudeDB(m.FrequencyHz)
+		lo := "-inf"
+		if !math.IsInf(m.LowerDB, -1) {
+			lo = fmt.Sprintf("%.1f", m.LowerDB)
+		}
+		ok := "ok"
+		if !m.Within(v) {
+			ok = "OUTSIDE"
+		}
+		fmt.Fprintf(w, "  %-36s %12.4f %12.3f %7s..%-7.1f %s\n", m.Label, m.FrequencyHz, v, lo, m.UpperDB, ok)
+	}
+	fmt.Fprintf(w, "  mask: %s; points above the Nyquist frequency are left out\n", st.Mask[0].Source)
+}

@@ -270,3 +270,45 @@ func TestBandsBatchCSVIntervalsPlot(t *testing.T) {
 		t.Errorf("table without the caution")
 	}
 }
+
+// TestBandStageDesignApplyVerify: the band family designs, filters and
+// verifies like any other stage; verify checks it at every point of its
+// class 1 mask.
+func TestBandStageDesignApplyVerify(t *testing.T) {
+	dir := t.TempDir()
+	spec := filepath.Join(dir, "band.json")
+	os.WriteFile(spec, []byte(`{"family": "band", "fraction": 3, "midband_hz": 1000}`), 0o644)
+	code, out, errs := runCmd(t, "design", "--spec", spec, "--rate", "44100")
+	if code != exitOK || !strings.Contains(out, "1/3-octave band 1k Hz") || strings.Contains(out, "OUTSIDE") {
+		t.Fatalf("design: exit %d, %s %s", code, out, errs)
+	}
+	code, out, errs = runCmd(t, "verify", "--spec", spec, "--probe", "--rate", "44100", "--json")
+	if code != exitOK {
+		t.Fatalf("verify --probe: exit %d: %s", code, errs)
+	}
+	var doc struct {
+		Verdict string `json:"verdict"`
+		Checks  []struct {
+			Kind string `json:"kind"`
+		} `json:"checks"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	masks := 0
+	for _, c := range doc.Checks {
+		if c.Kind == "mask" {
+			masks++
+		}
+	}
+	// 17 breakpoints of Table 1 (8 each side and fm), all below 22 kHz.
+	if doc.Verdict != "pass" || masks != 17 {
+		t.Errorf("verify: verdict %q with %d mask checks, want pass with 17", doc.Verdict, masks)
+	}
+	in := filepath.Join(dir, "in.wav")
+	writeToneWAV(t, in, 44100, 1000, 0.5, 1, wavio.PCM, 24)
+	code, _, errs = runCmd(t, "apply", "--spec", spec, "--output", filepath.Join(dir, "out"), in)
+	if code != exitOK {
+		t.Errorf("apply: exit %d: %s", code, errs)
+	}
+}
