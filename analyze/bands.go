@@ -314,7 +314,7 @@ func NewBandBank(o BankOptions) (*BandBank, error) {
 	}
 	if len(o.Prefilter) > 0 {
 		for c := 0; c < o.Channels; c++ {
-			b.pre = append(b.pre, newSOS(o.Prefilter))
+			b.pre = append(b.pre, newSOS(normalised(o.Prefilter)))
 		}
 	}
 	b.overallSum = make([]float64, o.Channels)

@@ -66,8 +66,9 @@ acceleration, 1e-9 m/s for velocity, 1e-12 m for displacement):
 Samples at full scale (PCM) or beyond it (float, without --units) are
 counted and reported: levels of a clipped recording read low.
 
---weighting Z (the default) applies no frequency weighting; A and C are
-not available in this version.
+--weighting A or C weights the signal (IEC 61672-1, designed at the
+file's rate, as the weighting family of 'wavsieve help spec') before the
+bands and the overall level; Z, the default, weights nothing.
 
 Output: a table per file; --json prints one JSON document, --csv one
 row per file, channel, stretch and band. --plot DIR writes a bar chart
@@ -91,8 +92,9 @@ Examples:
   # levels per second as JSON
   wavsieve bands --sensitivity '10.2mV/(m/s^2)' --full-scale-volts 1.0 --interval 1 --json logger.wav
 
-  # a float file already in pascals, 25 Hz to 20 kHz, with bar charts
-  wavsieve bands --units Pa --from 25 --to 20000 --plot out/bands probe.wav
+  # a float file already in pascals, 25 Hz to 20 kHz, A-weighted, with
+  # bar charts
+  wavsieve bands --units Pa --weighting A --from 25 --to 20000 --plot out/bands probe.wav
 
 Flags:
 `
@@ -169,7 +171,7 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	from := fs.Float64("from", 0, "lowest mid-band `Hz` (nominal or exact); default 16 for octaves, 12.5 otherwise")
 	to := fs.Float64("to", 0, "highest mid-band `Hz`; default: the highest band whose upper edge lies below 0.45 of the rate")
 	interval := fs.Float64("interval", 0, "also give levels over consecutive stretches of this many `seconds`")
-	weighting := fs.String("weighting", "Z", "frequency `weighting` of the levels: Z (none)")
+	weighting := fs.String("weighting", "Z", "frequency `weighting` of the band and overall levels: A, C or Z (none), IEC 61672-1")
 	fullScale := fs.String("full-scale", "", "what full scale means: the `level` of a full-scale sine (94dB, in dB SPL) or the value of a sample of 1.0 (3.5Pa, 10m/s^2)")
 	sensitivity := fs.String("sensitivity", "", "transducer `sensitivity` such as 10.2mV/Pa, 100mV/g or 1.02mV/(m/s^2); needs --full-scale-volts")
 	fsVolts := fs.Float64("full-scale-volts", 0, "the `volts` a sample of 1.0 stands for, with --sensitivity")
@@ -208,9 +210,9 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	case "Z", "":
 		opt.weighting = "Z"
 	case "A", "C":
-		return report(stderr, "bands", usagef("--weighting %s is not available in this version: only Z (no weighting) is", strings.ToUpper(*weighting)), "")
+		opt.weighting = strings.ToUpper(*weighting)
 	default:
-		return report(stderr, "bands", usagef("--weighting %q: use Z", *weighting), "")
+		return report(stderr, "bands", usagef("--weighting %q: use A, C or Z (IEC 61672-1)", *weighting), "")
 	}
 	if opt.plotDir != "" && opt.plotFormat != "png" && opt.plotFormat != "svg" {
 		return report(stderr, "bands", usagef("--plot-format %q: use png or svg", *plotFormat), "")
@@ -346,6 +348,14 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 		}
 		bo.ClipAt = 1 - math.Ldexp(1, -(bits-1)) // the largest positive code
 	}
+	if opt.weighting != "Z" {
+		wf, err := design.Design(design.Spec{Stages: []design.Stage{{Family: design.Weighting, Curve: opt.weighting}}}, bf.SampleRate)
+		if err != nil {
+			bf.Error = fmt.Sprintf("%s: %s-weighting: %v", path, opt.weighting, strings.TrimPrefix(err.Error(), "design: "))
+			return bf
+		}
+		bo.Prefilter = wf.Sections()
+	}
 	key := [2]int{f.SampleRate, f.Channels}
 	bank := banks[key]
 	if bank == nil {
@@ -460,7 +470,7 @@ func levelText(v *float64) string {
 // channel, then the overall level; with intervals, a table per channel
 // with a row per stretch.
 func printBands(w io.Writer, f bandsFile) {
-	fmt.Fprintf(w, "%s  %g Hz  %.1f s  1/%d-octave bands  %s  weighting %s\n", f.Path, f.SampleRate, f.DurationS, f.Fraction, f.Reference, f.Weighting)
+	fmt.Fprintf(w, "%s  %g Hz  %.1f s  1/%d-octave bands  %s  %s-weighted\n", f.Path, f.SampleRate, f.DurationS, f.Fraction, f.Reference, f.Weighting)
 	fmt.Fprintf(w, "  %8s %10s", "band Hz", "exact Hz")
 	for _, c := range f.Channels {
 		fmt.Fprintf(w, " %8s", fmt.Sprintf("ch%d", c.Channel))

@@ -212,7 +212,7 @@ func TestBandsUsageErrors(t *testing.T) {
 		args []string
 		want string
 	}{
-		{"A weighting not yet", []string{"--weighting", "A", name}, "not available"},
+		{"unknown weighting", []string{"--weighting", "B", name}, "use A, C or Z"},
 		{"bad fraction", []string{"--fraction", "5", name}, "--fraction 5"},
 		{"two calibrations", []string{"--full-scale", "94dB", "--units", "Pa", name}, "one of"},
 		{"volts without sensitivity", []string{"--full-scale-volts", "1", name}, "--sensitivity"},
@@ -310,5 +310,34 @@ func TestBandStageDesignApplyVerify(t *testing.T) {
 	code, _, errs = runCmd(t, "apply", "--spec", spec, "--output", filepath.Join(dir, "out"), in)
 	if code != exitOK {
 		t.Errorf("apply: exit %d: %s", code, errs)
+	}
+}
+
+// TestBandsWeighting: A-weighting leaves a 1 kHz tone as it is and takes
+// 19.1 dB off a 100 Hz one, C-weighting 0.3 dB (IEC 61672-1:2013,
+// Table 3, design goals at 100 Hz: A -19.1 dB, C -0.3 dB).
+func TestBandsWeighting(t *testing.T) {
+	const tolDB = 0.15 // the table's 0.1 dB rounding plus the level's 0.01 dB
+	dir := t.TempDir()
+	for _, tc := range []struct {
+		hz     float64
+		curve  string
+		wantDB float64
+	}{{1000, "A", 0}, {100, "A", -19.1}, {100, "C", -0.3}, {100, "Z", 0}} {
+		name := filepath.Join(dir, "t.wav")
+		writeToneWAV(t, name, 48000, tc.hz, 0.5, 3, wavio.Float, 32)
+		code, out, errs := runCmd(t, "bands", "--weighting", tc.curve, "--json", name)
+		if code != exitOK {
+			t.Fatalf("%s: exit %d: %s", tc.curve, code, errs)
+		}
+		var doc bandsJSON
+		json.Unmarshal([]byte(out), &doc)
+		got := bandLevelAt(t, doc, 0, tc.hz) - 20*math.Log10(0.5/math.Sqrt2)
+		if math.Abs(got-tc.wantDB) > tolDB {
+			t.Errorf("%s-weighted %g Hz tone: %+.2f dB re unweighted, want %+.1f", tc.curve, tc.hz, got, tc.wantDB)
+		}
+		if o := *doc.Files[0].Channels[0].OverallDB - 20*math.Log10(0.5/math.Sqrt2); math.Abs(o-tc.wantDB) > tolDB {
+			t.Errorf("%s-weighted %g Hz tone: overall %+.2f dB re unweighted, want %+.1f", tc.curve, tc.hz, o, tc.wantDB)
+		}
 	}
 }
