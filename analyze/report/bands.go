@@ -22,13 +22,13 @@ const BandsCaution = "Band levels computed from a file are not the reading of a 
 // report uses.
 type bandsDoc struct {
 	Files []struct {
-		Path       string  `json:"path"`
-		SampleRate float64 `json:"sample_rate_hz"`
-		Fraction   *int    `json:"fraction"`
-		DurationS  float64 `json:"duration_s"`
-		Reference  string  `json:"reference"`
-		Weighting  string  `json:"weighting"`
-		Error      string  `json:"error"`
+		Path       string   `json:"path"`
+		SampleRate float64  `json:"sample_rate_hz"`
+		Fraction   *int     `json:"fraction"`
+		DurationS  float64  `json:"duration_s"`
+		Reference  string   `json:"reference"`
+		Weighting  string   `json:"weighting"`
+		Error      string   `json:"error"`
 		Warnings   []string `json:"warnings"`
 		Channels   []struct {
 			Channel   int      `json:"channel"`
