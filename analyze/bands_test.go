@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"github.com/wavsieve/wavsieve/design"
 	"gonum.org/v1/gonum/dsp/fourier"
 )
 
@@ -264,5 +265,61 @@ func TestBankDefaultRange(t *testing.T) {
 	}
 	if _, err := NewBandBank(BankOptions{SampleRate: 44100, Channels: 1, Fraction: 3, ToHz: 20000}); err == nil {
 		t.Errorf("20 kHz third at 44.1 kHz accepted")
+	}
+}
+
+// TestBankResponseInsideMask: the bands as the multirate bank runs them
+// (anti-alias low-passes, decimation, the band filter at its own rate)
+// read tones at the breakpoints of the class 1 mask (IEC 61260-1:2014,
+// Table 1, committed in testdata/bands) within its limits, relative to
+// the reading at fm; and tones that the decimations would fold onto fm
+// read at least 70 dB down, the mask's far-stopband minimum.
+func TestBankResponseInsideMask(t *testing.T) {
+	const rate = 48000
+	// slackDB: the tones are read over a finite stretch after a raised-
+	// cosine fade-in; what the transients leave is far below this.
+	const slackDB = 0.02
+	for _, nominal := range []float64{25, 160, 1000, 6300} {
+		o := BankOptions{SampleRate: rate, Channels: 1, Fraction: 3, FromHz: nominal, ToHz: nominal}
+		b, err := NewBandBank(o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		bd := b.Bands()[0]
+		read := func(hz float64) float64 {
+			n := int(rate * math.Max(1, 150/bd.ExactHz))
+			fade := n / 10
+			x := make([]float64, n)
+			for i := range x {
+				g := 1.0
+				if i < fade {
+					g = 0.5 - 0.5*math.Cos(math.Pi*float64(i)/float64(fade))
+				}
+				x[i] = g * math.Sin(2*math.Pi*hz*float64(i)/rate)
+			}
+			return msDB(runBank(b, x).Bands[0][0])
+		}
+		ref := read(bd.ExactHz)
+		var probes []float64
+		for _, x := range []float64{1.0 / 8, 1.0 / 4, 3.0 / 8, 1.0 / 2, 1, 2, 3, 4} {
+			om := 1 + (math.Pow(10, 0.3/6)-1)/(math.Pow(10, 0.15)-1)*(math.Pow(10, 0.3*x)-1) // 5.10 mapping, b = 3
+			probes = append(probes, bd.ExactHz/om, bd.ExactHz*om)
+		}
+		for _, hz := range probes {
+			if hz >= rate/2 {
+				continue
+			}
+			lo, hi := design.Class1Limits(3, bd.ExactHz, hz)
+			if r := read(hz) - ref; r < lo-slackDB || r > hi+slackDB {
+				t.Errorf("band %s at %.2f Hz (run at %g Hz): %.3f dB re fm, outside [%g, %g]", bd.Label, hz, b.Rates()[0], r, lo, hi)
+			}
+		}
+		// Tones that each decimation by 2 would fold onto fm.
+		for r := float64(rate) / 2; r >= b.Rates()[0]; r /= 2 {
+			hz := r - bd.ExactHz
+			if got := read(hz) - ref; got > -70 {
+				t.Errorf("band %s: a tone at %.2f Hz, folding onto fm at the %g Hz rate, reads %.1f dB re fm, want -70 or less", bd.Label, hz, r, got)
+			}
+		}
 	}
 }
