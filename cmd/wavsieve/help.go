@@ -260,14 +260,19 @@ wavsieve verify --json
 
 const exitHelp = `Exit codes
 
-  0  done: every file was done or skipped (apply), surveyed (survey),
-     every check passed or could not be measured (verify)
+  0  done: every file was done or skipped (apply), surveyed (survey);
+     (verify) pass: every edge, cutoff, notch and mask check was measured
+     and passed
   1  failed: a file could not be read, designed or written, a spec is
-     invalid, or (verify) a check failed; in a batch the other files are
-     still done, and the summary and the manifest say which failed
+     invalid, or (verify, apply --verify) a check failed; in a batch the
+     other files are still done, and the summary and the manifest say which
+     failed
   2  usage error: an unknown command or flag, a missing argument, or a flag
      value that cannot work (such as --cutoff at or above the Nyquist
      frequency of --rate); nothing was done
+  3  (verify) inconclusive: no check failed, but some edge, cutoff, notch or
+     mask check could not be measured (each says why); apply --verify
+     prints "inconclusive" and exits 0
 
 Messages go to stderr and data to stdout, so a script can test the code
 and still read the data.
