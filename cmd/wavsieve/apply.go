@@ -48,8 +48,9 @@ is skipped only when its digest matches, and refused otherwise (give
 
 --shard K/N keeps every N-th input of the sorted list, starting with the
 K-th, so that N machines given the same command share an archive: in a
-Slurm array, --shard $((SLURM_ARRAY_TASK_ID+1))/$SLURM_ARRAY_TASK_COUNT;
-in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
+Slurm array of N tasks, --shard $((SLURM_ARRAY_TASK_ID+1))/N (N written
+out, so that resubmitting one task keeps the shares); in a Kubernetes
+indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
 share writes its own record, wavsieve-manifest.K-of-N.json, holding the
 whole input list; 'wavsieve gather DIR' merges them and lists what is
 missing.
@@ -182,6 +183,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	// The record of the run: given by --manifest, or in the output
 	// folder, one per share when the inputs are shared out.
 	base := o.manifest
+	if base != "" && popt.Shards > 0 {
+		base += fmt.Sprintf(".%d-of-%d", popt.Shard, popt.Shards)
+	}
 	if base == "" {
 		dir := popt.OutputDir
 		if dir == "" {
@@ -195,7 +199,16 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	defer stop()
 	// Runs with one record are serialised from planning to the record's
 	// writing, so that the record always describes the files on disk.
+	// undo takes back the folder the lock made when the run stops before
+	// filtering anything.
+	undo := func() {}
 	if !o.dryRun {
+		if _, err := os.Stat(filepath.Dir(base)); err != nil {
+			undo = func() {
+				os.Remove(runrecord.LockPath(base))
+				os.Remove(filepath.Dir(base))
+			}
+		}
 		unlock, err := runrecord.Lock(ctx, base, func() {
 			fmt.Fprintf(stderr, "wavsieve apply: waiting for another run that writes the record %s.json to finish\n", base)
 		})
@@ -206,6 +219,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	rec, err := runrecord.Load(base)
 	if err != nil {
+		undo()
 		return report(stderr, "apply", err, "")
 	}
 	// A share also trusts the record that gather made of earlier shares.
@@ -226,6 +240,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	items, err := process.PlanInputs(found, popt)
 	if err != nil {
+		undo()
 		return report(stderr, "apply", err, "")
 	}
 	if o.dryRun {

@@ -67,7 +67,8 @@ resolve what no recording can (a notch 2 Hz wide, a notch centre 100 dB
 down). --probe=noise uses white noise instead. Write the value with "=":
 --probe alone means tones.
 
---manifest takes the spec and the files from the manifest apply wrote, and
+--manifest takes the spec and the files from the record apply wrote (its
+JSON or CSV, or the output folder, whose share records it merges), and
 verifies every file it records as done (or only --input's entry); the
 paths are as apply recorded them, so run verify from where apply ran.
 
@@ -128,8 +129,8 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	o.sf.register(fs)
 	fs.StringVarP(&o.input, "input", "i", "", "the run's input WAV `file` (with --probe: the file whose rate, channels and format to probe)")
 	fs.StringVarP(&o.output, "output", "o", "", "the run's output WAV `file`")
-	fs.StringVar(&o.manifest, "manifest", "", "take the spec and the files from apply's JSON manifest `file`")
-	fs.StringVar(&o.probe, "probe", "", "verify the chain with a probe instead of the recording: `kind` tones (--probe alone) or noise (--probe=noise)")
+	fs.StringVar(&o.manifest, "manifest", "", "take the spec and the files from apply's record `file` (JSON or CSV) or output folder")
+	fs.StringVar(&o.probe, "probe", "", "verify the chain with a probe instead of the recording: tones (the default) or `noise`, as --probe=noise")
 	fs.Lookup("probe").NoOptDefVal = "tones"
 	fs.IntVar(&o.rate, "rate", 0, "with --probe and no --input: the sample rate in `Hz`")
 	fs.StringVar(&o.channels, "channels", "", "check only these channels, counted from 1 (`list` such as 1,3), as apply --channels filtered")
@@ -276,7 +277,7 @@ func verifyHint(err error) string {
 	case errors.Is(err, verify.ErrUnknownLength):
 		return "rewrite the file with a complete header (wavsieve apply writes one)"
 	}
-	if strings.Contains(err.Error(), "Nyquist") {
+	if errors.Is(err, design.ErrAboveNyquist) {
 		return "every edge must lie below half the sample rate of the file"
 	}
 	return ""
