@@ -395,11 +395,14 @@ func printVerify(w io.Writer, r *verify.Result) {
 	fmt.Fprintf(w, "  %-2s %-2s %-13s %11s %8s %15s %8s %15s %*s %7s  %s\n", "ch", "st", "kind", "Hz", "designed", "design range", "measured", "interval", lw, "limit", "margin", "verdict")
 	for _, c := range r.Checks {
 		kind := c.Kind
-		if c.Label != "" {
+		if c.Label != "" && len(kind)+1+len(c.Label) <= 13 {
 			kind += " " + c.Label
 		}
 		fmt.Fprintf(w, "  %-2d %-2d %-13s %11s %8s %15s %8s %15s %*s %7s  %s\n", c.Channel, c.Stage, kind, fmtHz(c.FrequencyHz),
 			fmtDB(c.DesignedDB, "%.2f"), fmtPair(c.DesignRangeDB), fmtDB(c.MeasuredDB, "%.2f"), fmtPair(c.IntervalDB), lw, limit(c), fmtDB(c.MarginDB, "%+.2f"), c.Verdict)
+		if c.Label != "" && len(c.Kind)+1+len(c.Label) > 13 {
+			fmt.Fprintf(w, "        %s\n", c.Label)
+		}
 		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1)) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}
