@@ -550,7 +550,7 @@ func Verify(f *design.Filter, e *Estimator, tr *Transfer, pts []VerifyPoint, cha
 		case floor > target-VerifySeeBelowDB:
 			r.Verdict = VerdictUnmeasurable
 			nout := tr.Pyy[k] * math.Max(0, 1-tp.Coherence)
-			r.Reason = fmt.Sprintf("not measurable below %.1f dB: the input's density here (%.1f dBFS^2/Hz) is too low against the output's uncorrelated floor (%.1f dBFS^2/Hz; coherence %.3g)", floor, 10*math.Log10(pxx), 10*math.Log10(nout), tp.Coherence)
+			r.Reason = fmt.Sprintf("not measurable below %.1f dB: the input's density here (%.1f dBFS²/Hz) is too low against the output's uncorrelated floor (%.1f dBFS²/Hz; coherence %.3g)", floor, 10*math.Log10(pxx), 10*math.Log10(nout), tp.Coherence)
 		case !p.HasLimit && hi-lo > VerifyMaxSpreadDB:
 			r.Verdict = VerdictUnmeasurable
 			r.Reason = fmt.Sprintf("the design changes by %.1f dB within the %.3g Hz resolution here; a longer recording (or --probe) allows a longer segment", hi-lo, 2*df)

@@ -9,12 +9,25 @@ import (
 	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 	"gonum.org/v1/plot/vg/vgsvg"
 )
+
+// The plots' text is Liberation Sans, a sans-serif metric-compatible with
+// Arial: the HTML report sets its page in the same family (PageFontFamily),
+// so that text in the plots and around them looks alike.
+func init() {
+	plot.DefaultFont = font.Font{Typeface: "Liberation", Variant: "Sans"}
+	plotter.DefaultFont = plot.DefaultFont
+}
+
+// PageFontFamily is the CSS font-family list that matches the plots'
+// text, for a page that embeds them.
+const PageFontFamily = `"Liberation Sans", Arial, Helvetica, sans-serif`
 
 // DPI is the resolution of PNG output in dots per inch.
 const DPI = vgimg.DefaultDPI
