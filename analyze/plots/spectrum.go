@@ -205,7 +205,7 @@ func shorten(s string, n int) string {
 // thinBins is the number of logarithmic frequency bins a spectrum is
 // thinned to: about one per point of the default plot width, so that
 // nothing visible is lost.
-const thinBins = 600
+const thinBins = 500
 
 // thinSpectrum keeps, in each of thinBins logarithmic bins between lo and
 // hi, the first and last point and those where any curve (a level, a
@@ -215,7 +215,7 @@ const thinBins = 600
 // SVG shrinks as much.
 func thinSpectrum(s SpectrumPlot, lo, hi float64) SpectrumPlot {
 	n := len(s.FrequenciesHz)
-	if n <= 4*thinBins {
+	if n <= 2*thinBins {
 		return s
 	}
 	var curves [][]float64

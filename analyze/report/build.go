@@ -38,6 +38,7 @@ type verifyDoc struct {
 	NotMeasured bool   `json:"not_measured"`
 	Error       string `json:"error"`
 	Checks      []struct {
+		Channel     int      `json:"channel"`
 		FrequencyHz float64  `json:"frequency_hz"`
 		Kind        string   `json:"kind"`
 		DesignedDB  *float64 `json:"designed_db"`
@@ -73,7 +74,7 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 	if err != nil {
 		return Report{}, fmt.Errorf("report: the manifest's spec: %w", err)
 	}
-	r := Report{Title: "wavsieve filtering report", Subtitle: fmt.Sprintf("%d files; spec: %s", len(m.Files), specSummary(spec))}
+	r := Report{Title: "wavsieve filtering report", Runs: []string{fmt.Sprintf("%d files filtered with %s", len(m.Files), specSummary(spec))}}
 	t := Table{
 		Caption: "Run manifest (click a heading to sort)",
 		Columns: []string{"input", "output", "status", "rate (Hz)", "channels", "duration (s)", "peak in (dBFS)", "peak out (dBFS)", "clipped", "verified", "seconds", "error"},
@@ -141,7 +142,9 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 		if filt, err := design.Design(fileSpec, float64(f.SampleRate)); err == nil {
 			var b bytes.Buffer
 			if err := plots.Design(filt, &b, "svg", plots.DesignOptions{}); err == nil {
-				sec.Plots = append(sec.Plots, Plot{Caption: fmt.Sprintf("The filter as designed at this file's %d Hz rate: magnitude with the spec's forbidden areas, phase, group delay and poles and zeros.", f.SampleRate), SVG: b.Bytes()})
+				key, _ := json.Marshal(fileSpec)
+				sec.Plots = append(sec.Plots, Plot{Caption: fmt.Sprintf("The filter as designed at this file's %d Hz rate: magnitude with the spec's forbidden areas, phase, group delay and poles and zeros.", f.SampleRate), SVG: b.Bytes(),
+					Key: fmt.Sprintf("design %s at %d Hz", key, f.SampleRate)})
 			}
 		}
 		if vd.Error != "" {
@@ -149,10 +152,21 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 		}
 		if verdict != "" && len(vd.Checks) > 0 {
 			t := Table{Caption: "Verification (measured transfer magnitude against the design and the spec): " + strings.ToUpper(verdict),
-				Columns: []string{"frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
-				Numeric: []bool{true, false, true, true, true, true, false, false}}
+				Columns: []string{"channel", "frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
+				Numeric: []bool{true, true, false, true, true, true, true, false, false}}
+			seen := map[string]bool{}
 			for _, c := range vd.Checks {
-				t.Rows = append(t.Rows, []string{fmtHz(c.FrequencyHz), c.Kind, fmtPtr(c.DesignedDB), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason})
+				ch := ""
+				if c.Channel > 0 {
+					ch = strconv.Itoa(c.Channel)
+				}
+				row := []string{ch, fmtHz(c.FrequencyHz), c.Kind, fmtPtr(c.DesignedDB), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason}
+				if k := strings.Join(row, "\x00"); seen[k] {
+					continue
+				} else {
+					seen[k] = true
+				}
+				t.Rows = append(t.Rows, row)
 				t.RowClass = append(t.RowClass, c.Verdict)
 			}
 			sec.Tables = append(sec.Tables, t)
@@ -189,7 +203,7 @@ func FromSurvey(doc []byte, dir string, opt Options) (Report, error) {
 	if err := json.Unmarshal(doc, &s); err != nil {
 		return Report{}, fmt.Errorf("report: the survey is not valid JSON: %w", err)
 	}
-	r := Report{Title: "wavsieve hum and rumble survey", Subtitle: fmt.Sprintf("%d files", len(s.Files))}
+	r := Report{Title: "wavsieve hum and rumble survey", Runs: []string{fmt.Sprintf("survey of %d files", len(s.Files))}}
 	t := Table{Caption: "Files surveyed (click a heading to sort)",
 		Columns: []string{"file", "rate (Hz)", "channels", "duration (s)", "hum (Hz)", "drift (Hz)", "harmonics above floor", "error"},
 		Numeric: []bool{false, true, true, true, true, true, true, false}}
@@ -358,20 +372,41 @@ func resolve(dir, p string) string {
 }
 
 func specSummary(s design.Spec) string {
+	hz := func(e design.Edges) string {
+		v := make([]string, len(e))
+		for i, x := range e {
+			v[i] = strconv.FormatFloat(x, 'g', 6, 64)
+		}
+		return strings.Join(v, "-") + " Hz"
+	}
 	var parts []string
 	for _, st := range s.Stages {
 		switch {
 		case st.Family == design.Notch:
-			parts = append(parts, fmt.Sprintf("notches at %g Hz and harmonics", st.FundamentalHz))
+			width := fmt.Sprintf("%g Hz wide", st.BandwidthHz)
+			if st.Q > 0 {
+				width = fmt.Sprintf("q %g", st.Q)
+			}
+			which := "harmonics"
+			if st.OddOnly {
+				which = "odd harmonics"
+			}
+			upTo := fmt.Sprintf("up to number %d", st.Harmonics)
+			if st.Harmonics == 0 {
+				upTo = fmt.Sprintf("below %g Hz", float64(design.DefaultNotchLimitHz))
+			}
+			parts = append(parts, fmt.Sprintf("notches at %g Hz and its %s %s, %s", st.FundamentalHz, which, upTo, width))
 		case st.Order > 0:
-			parts = append(parts, fmt.Sprintf("%s %s order %d at %v Hz", st.Family, st.Response, st.Order, []float64(st.CutoffHz)))
+			parts = append(parts, fmt.Sprintf("%s %s of order %d at %s", st.Family, st.Response, st.Order, hz(st.CutoffHz)))
+		case len(st.PassbandHz) > 0:
+			parts = append(parts, fmt.Sprintf("%s %s: passband %s within %g dB, stopband %s down %g dB", st.Family, st.Response, hz(st.PassbandHz), st.RippleDB, hz(st.StopbandHz), st.AttenuationDB))
 		default:
-			parts = append(parts, fmt.Sprintf("%s %s, passband %v Hz, stopband %v Hz, %g dB ripple, %g dB attenuation", st.Family, st.Response, []float64(st.PassbandHz), []float64(st.StopbandHz), st.RippleDB, st.AttenuationDB))
+			parts = append(parts, st.Family)
 		}
 	}
 	out := strings.Join(parts, ", then ")
 	if s.ZeroPhase {
-		out += " (zero-phase)"
+		out += ", zero-phase"
 	}
 	return out
 }
