@@ -175,9 +175,10 @@ h1 { font-size: 1.6em; margin-bottom: 0.2em; }
 h2 { font-size: 1.25em; border-top: 2px solid #5a7d9a; padding-top: 0.6em; margin-top: 2em; }
 .sub { color: #4b5a6a; margin-top: 0; }
 .note { background: #f3f1e7; border-left: 4px solid #b49a3c; padding: 0.4em 0.8em; margin: 0.4em 0; }
-dl.facts { display: grid; grid-template-columns: max-content auto; gap: 0.15em 1em; }
+dl.facts { display: grid; grid-template-columns: max-content minmax(0, 1fr); gap: 0.15em 1em; }
 dl.facts dt { color: #4b5a6a; }
-dl.facts dd { margin: 0; font-variant-numeric: tabular-nums; }
+dl.facts dd { margin: 0; font-variant-numeric: tabular-nums; overflow-wrap: anywhere; }
+h2, figcaption, p { overflow-wrap: anywhere; }
 figure { margin: 1em 0; }
 figure svg { max-width: 100%; height: auto; }
 figcaption { color: #4b5a6a; font-size: 0.9em; }
@@ -188,7 +189,15 @@ td { overflow-wrap: anywhere; }
 td.num { white-space: nowrap; }
 ul.runs { margin: 0.3em 0 0.8em 0; padding-left: 1.2em; color: #4b5a6a; }
 p.ref { color: #4b5a6a; font-style: italic; }
-@media (max-width: 600px) { body { padding: 0 0.4em; } table { font-size: 0.8em; } th, td { padding: 0.2em 0.3em; } }
+@media (max-width: 600px) {
+  body { padding: 0 0.4em; }
+  table { font-size: 0.8em; }
+  table.wide { width: auto; }
+  td { overflow-wrap: normal; white-space: nowrap; }
+  th, td { padding: 0.2em 0.3em; }
+  dl.facts { grid-template-columns: minmax(0, 1fr); }
+  dl.facts dd { margin-bottom: 0.3em; }
+}
 caption { text-align: left; font-weight: bold; padding-bottom: 0.3em; }
 th, td { border: 1px solid #c8d0d8; padding: 0.25em 0.5em; }
 th { background: #e6edf3; cursor: pointer; user-select: none; }
