@@ -240,7 +240,9 @@ func TestVerifyZeroPhaseDoubling(t *testing.T) {
 				}
 				cut = true
 				// Designed at the cutoff: -3.01 dB for one pass of a
-				// Butterworth, -6.02 dB forward and backward.
+				// Butterworth, -6.02 dB forward and backward. A definition:
+				// |H|^2 = 1 / (1 + (f/fc)^2N) is 1/2 at fc, 10 log10(1/2) =
+				// -3.0103 dB, doubled in dB by the second pass.
 				want := -3.0103
 				if c.as.ZeroPhase {
 					want *= 2
