@@ -78,6 +78,10 @@ type Stage struct {
 	BandwidthHz   float64 `json:"bandwidth_hz,omitempty"`
 	Q             float64 `json:"q,omitempty"`
 	OddOnly       bool    `json:"odd_harmonics_only,omitempty"`
+
+	// Weighting stages: the curve of a standard (IEC 61672-1 A, C, Z;
+	// ISO 8041-1 Wb ... Wm).
+	Curve string `json:"curve,omitempty"`
 }
 
 // Spec is a chain of stages run in order. With ZeroPhase set the chain

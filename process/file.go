@@ -688,6 +688,8 @@ func describe(f *design.Filter) string {
 		s := fmt.Sprintf("%s %s order %d", st.Family, st.Response, st.Order)
 		if st.Form == design.FormNotch {
 			s = fmt.Sprintf("notch x%d from %g Hz", len(st.NotchHz), st.NotchHz[0])
+		} else if st.Weighting != nil {
+			s = fmt.Sprintf("%s (%s), %d poles", st.Weighting.Name(), st.Weighting.Standard, len(st.ZPK.Poles))
 		} else {
 			var e []string
 			for _, hz := range st.EdgesHz {

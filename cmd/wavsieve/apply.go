@@ -14,6 +14,7 @@ import (
 	"syscall"
 
 	"github.com/spf13/pflag"
+	"github.com/wavsieve/wavsieve/analyze/verify"
 	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
@@ -53,6 +54,11 @@ share writes its own record, wavsieve-manifest.K-of-N.json, holding the
 whole input list; 'wavsieve gather DIR' merges them and lists what is
 missing.
 
+--weighting CURVE adds a standard weighting (A, C, Z; Wb ... Wm) after the
+other stages, or alone ('wavsieve help weighting'). A level computed from
+a weighted file is not a sound level meter's reading: the microphone, its
+calibration and the measuring chain are unknown to wavsieve.
+
 Exit codes: 0 every file done or skipped, 1 some failed, 2 usage error.
 
 Examples:
@@ -63,6 +69,9 @@ Examples:
   wavsieve apply --family elliptic --response lowpass --passband 2000 --stopband 2500 \
       --ripple 0.1 --attenuation 80 --zero-phase --sample-format float32 \
       --output out/logger-lp.wav logger.wav
+
+  # A-weight a folder of 48 kHz recordings (each file at its own rate)
+  wavsieve apply --weighting A --output out/a-weighted recordings/
 
   # see what would be designed for each file, writing nothing
   wavsieve apply --spec hum.json --output out --recursive --dry-run archive/
@@ -223,18 +232,19 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return dryRun(items, tmpl, o.asJSON, stdout, stderr)
 	}
 
-	var inline *inlineVerify
+	var inline *verify.Observer
 	if *verifyRuns {
-		inline = &inlineVerify{sessions: map[string]inlineSession{}, only: tmpl.Only}
-		tmpl.Observe = inline.observe
+		inline = verify.NewObserver(verify.Options{Channels: tmpl.Only})
+		tmpl.Observe = inline.Observe
 	}
 	prog := newProgress(stderr, items, !o.noProgress)
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
 
-	var verified []*verifyReport
+	var verified []*verify.Result
+	verdict := ""
 	if inline != nil && ctx.Err() == nil {
-		verified = inline.reports(results, stderr)
+		verified, verdict = inlineReports(inline, results, stderr)
 	}
 	rows := recordRows(results, spec, verified)
 	// What --json prints: this run's rows, a skipped file with what the
@@ -291,6 +301,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		where = "the manifest was NOT written"
 	}
 	fmt.Fprintf(stderr, "wavsieve apply: %d done, %d skipped, %d failed; %s\n", done, skipped, failed, where)
+	if verdict != "" {
+		fmt.Fprintf(stderr, "wavsieve apply: verification: %s\n", verdict)
+	}
 	if ctx.Err() != nil {
 		fmt.Fprintln(stderr, "wavsieve apply: interrupted; no partial outputs were left")
 		return exitFail
@@ -298,7 +311,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if werr != nil {
 		return exitFail
 	}
-	if failed > 0 || !verifiedPass(verified) {
+	if failed > 0 || verdict == verify.Fail {
 		return exitFail
 	}
 	return exitOK

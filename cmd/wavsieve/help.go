@@ -19,6 +19,7 @@ func helpTopics() []helpTopic {
 		{"spec", "the filter spec file: every key, its unit and an example", specHelp},
 		{"json", "the JSON documents the commands print with --json", func() string { return jsonHelp }},
 		{"exit-codes", "what each exit code means", func() string { return exitHelp }},
+		{"weighting", "the standard weightings (A, C, Z; Wb..Wm) and their accuracy", func() string { return weightingHelp }},
 	}
 }
 
@@ -100,6 +101,11 @@ var specFamilies = []specFamily{
   warning: it also removes much of the signal.
     {"family": "notch", "fundamental_hz": 50, "harmonics": 7, "bandwidth_hz": 2}
     {"family": "notch", "fundamental_hz": 60, "harmonics": 7, "odd_harmonics_only": true, "q": 50}`},
+	{"weighting", `weighting: a curve a standard defines, at the file's rate: curve "A",
+  "C" or "Z" (IEC 61672-1) or "Wb", "Wc", "Wd", "We", "Wf", "Wh", "Wj",
+  "Wk", "Wm" (ISO 8041-1). No other keys; causal only. See 'wavsieve help
+  weighting'. Weighted levels from a file are no sound level meter reading.
+    {"family": "weighting", "curve": "A"}`},
 }
 
 func specHelp() string {
@@ -160,6 +166,7 @@ Stage keys (units in brackets):
   q               [ratio] notch only: constant quality factor instead of
                   bandwidth_hz (width = centre / q), e.g. 30
   odd_harmonics_only  true or false, notch only: notch harmonics 1, 3, 5...
+  curve           weighting only: A, C, Z, Wb, Wc, Wd, We, Wf, Wh, Wj, Wk or Wm
 
 A frequency is a number, or an array of one or two numbers. Every edge must
 lie below the Nyquist frequency (half the sample rate) of each file the spec

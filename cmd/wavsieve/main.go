@@ -55,8 +55,8 @@ Commands:
 %s
 Run 'wavsieve <command> --help' for a command's flags and examples, and
 'wavsieve help <topic>' for the spec-file keys (spec), the JSON documents
-(json) and the exit codes (exit-codes). 'wavsieve --version' prints the
-version.
+(json), the exit codes (exit-codes) and the standard weightings
+(weighting). 'wavsieve --version' prints the version.
 
 Exit codes: 0 done, 1 failed, 2 usage error (see 'wavsieve help exit-codes').
 `

@@ -32,6 +32,7 @@ type specFlags struct {
 	q           float64
 	oddOnly     bool
 	zeroPhase   bool
+	weighting   string
 }
 
 func (s *specFlags) register(fs *pflag.FlagSet) {
@@ -50,11 +51,24 @@ func (s *specFlags) register(fs *pflag.FlagSet) {
 	fs.Float64Var(&s.bandwidth, "notch-width", 0, "notch: -3 dB width of each notch in `Hz`")
 	fs.Float64Var(&s.q, "notch-q", 0, "notch: constant quality factor `Q` (width = centre / Q) instead of --notch-width")
 	fs.BoolVar(&s.oddOnly, "odd-only", false, "notch: odd harmonics only")
+	fs.StringVar(&s.weighting, "weighting", "", "add a standard weighting `curve` after the other stages: "+strings.Join(design.WeightingCurves(), ", ")+" (IEC 61672-1, ISO 8041-1); weighted levels from a file are no sound level meter or vibration meter reading")
 	fs.BoolVar(&s.zeroPhase, "zero-phase", false, "run forward and backward: the squared response meets the spec")
 }
 
-// spec builds the spec from the file or from the flags.
+// spec builds the spec from the file or from the flags, then adds the
+// --weighting stage at the end of the chain.
 func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
+	sp, err := s.baseSpec(fs)
+	if err != nil || s.weighting == "" {
+		return sp, err
+	}
+	sp.Stages = append(sp.Stages, design.Stage{Family: design.Weighting, Curve: s.weighting})
+	return sp, nil
+}
+
+// baseSpec builds the spec from the file or from the flags, without
+// --weighting; with --weighting alone it is an empty chain.
+func (s *specFlags) baseSpec(fs *pflag.FlagSet) (design.Spec, error) {
 	inline := []string{"family", "response", "order", "cutoff", "passband", "stopband", "ripple", "attenuation", "bessel-norm", "hum", "harmonics", "notch-width", "notch-q", "odd-only"}
 	var set []string
 	for _, n := range inline {
@@ -84,7 +98,19 @@ func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
 		return sp, nil
 	}
 	if s.family == "" {
-		return design.Spec{}, usagef("no filter given: use --spec FILE, or --family with its flags")
+		if s.weighting != "" {
+			var other []string
+			for _, n := range inline {
+				if fs.Changed(n) {
+					other = append(other, "--"+n)
+				}
+			}
+			if len(other) > 0 {
+				return design.Spec{}, usagef("%s need --family (or use --spec FILE)", strings.Join(other, ", "))
+			}
+			return design.Spec{ZeroPhase: s.zeroPhase}, nil
+		}
+		return design.Spec{}, usagef("no filter given: use --spec FILE, --family with its flags, or --weighting CURVE")
 	}
 	if s.cutoff != "" && s.order == 0 && s.family != design.Notch {
 		return design.Spec{}, usagef("--cutoff needs --order N, the prototype order (for example --order 4); or, for the minimum order, give --passband, --stopband, --ripple and --attenuation instead of --cutoff")
