@@ -170,7 +170,7 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 				if c.Channel > 0 {
 					ch = strconv.Itoa(c.Channel)
 				}
-				row := []string{ch, fmtHz(c.FrequencyHz), c.Kind, fmtPtr(c.DesignedDB), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason}
+				row := []string{ch, fmtHz(c.FrequencyHz), c.Kind, fmtPtr(c.DesignedDB), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, unitSpelling.Replace(c.Reason)}
 				if k := strings.Join(row, "\x00"); seen[k] {
 					continue
 				} else {
@@ -456,5 +456,9 @@ func fmtPtr(v *float64) string {
 	}
 	return fmt.Sprintf("%.2f", *v)
 }
+
+// unitSpelling writes the units of levels one way on the page: dBFS²/Hz
+// for a density level, FS²/Hz for a density.
+var unitSpelling = strings.NewReplacer("dB re FS^2/Hz", "dBFS²/Hz", "dBFS^2/Hz", "dBFS²/Hz", "FS^2/Hz", "FS²/Hz", "FS^2", "FS²")
 
 func fmtHz(v float64) string { return strconv.FormatFloat(v, 'g', 7, 64) }
