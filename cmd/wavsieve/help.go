@@ -256,13 +256,16 @@ wavsieve verify --json
 const exitHelp = `Exit codes
 
   0  done: every file was done or skipped (apply), surveyed (survey),
-     every check passed or could not be measured (verify)
+     every check passed (verify)
   1  failed: a file could not be read, designed or written, a spec is
      invalid, or (verify) a check failed; in a batch the other files are
      still done, and the summary and the manifest say which failed
   2  usage error: an unknown command or flag, a missing argument, or a flag
      value that cannot work (such as --cutoff at or above the Nyquist
      frequency of --rate); nothing was done
+  3  inconclusive (verify only): no check failed, but some edge, cutoff or
+     notch could not be shown to pass (too short a recording, too little
+     signal there); --probe measures the same chain with tones
 
 Messages go to stderr and data to stdout, so a script can test the code
 and still read the data.
