@@ -215,6 +215,11 @@ wavsieve apply --json (and the run record wavsieve-manifest.json)
   The same rows are written as wavsieve-manifest.csv; runs into one
   folder add to one record, keyed by output.
 
+wavsieve gather --json
+  {"version", "files": [the merged record's rows, as apply's],
+   "missing": [inputs no share did], "failed", "shares", "resubmit",
+   "done_twice", "record": the merged record's file}
+
 wavsieve spectrum --json
   {"version", "file", "sample_rate_hz", "window", "segment", "overlap",
    "scaling": "density" | "spectrum", "units", "detrend", "average",
