@@ -95,6 +95,9 @@ type FileResult struct {
 	Seconds       float64
 	Status        string
 	Error         string
+	// Err is the error behind Error, for a caller that must tell cases
+	// apart (a design error naming a spec key, say); nil when done.
+	Err error
 }
 
 // Statuses of a FileResult.
@@ -138,7 +141,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	defer func() {
 		res.Seconds = time.Since(start).Seconds()
 		if err != nil {
-			res.Error = err.Error()
+			res.Error, res.Err = err.Error(), err
 		} else {
 			res.Status = StatusDone
 		}
