@@ -76,7 +76,7 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 	if err != nil {
 		return Report{}, fmt.Errorf("report: the manifest's spec: %w", err)
 	}
-	r := Report{Title: "wavsieve filtering report", Runs: []string{fmt.Sprintf("%d files filtered with %s", len(m.Files), specSummary(spec))}}
+	r := Report{Title: "wavsieve filtering report", Runs: []string{fmt.Sprintf("%s filtered with %s", plural(len(m.Files), "file"), specSummary(spec))}}
 	t := Table{
 		Caption: "Run manifest (click a heading to sort)",
 		Columns: []string{"input", "output", "status", "rate (Hz)", "channels", "duration (s)", "peak in (dBFS)", "peak out (dBFS)", "clipped", "verified", "seconds", "error"},
@@ -213,7 +213,7 @@ func FromSurvey(doc []byte, dir string, opt Options) (Report, error) {
 	if err := json.Unmarshal(doc, &s); err != nil {
 		return Report{}, fmt.Errorf("report: the survey is not valid JSON: %w", err)
 	}
-	r := Report{Title: "wavsieve hum and rumble survey", Runs: []string{fmt.Sprintf("survey of %d files", len(s.Files))}}
+	r := Report{Title: "wavsieve hum and rumble survey", Runs: []string{"survey of " + plural(len(s.Files), "file")}}
 	t := Table{Caption: "Files surveyed (click a heading to sort)",
 		Columns: []string{"file", "rate (Hz)", "channels", "duration (s)", "hum (Hz)", "drift (Hz)", "harmonics above floor", "error"},
 		Numeric: []bool{false, true, true, true, true, true, true, false}}
@@ -462,3 +462,11 @@ func fmtPtr(v *float64) string {
 var unitSpelling = strings.NewReplacer("dB re FS^2/Hz", "dBFS²/Hz", "dBFS^2/Hz", "dBFS²/Hz", "FS^2/Hz", "FS²/Hz", "FS^2", "FS²")
 
 func fmtHz(v float64) string { return strconv.FormatFloat(v, 'g', 7, 64) }
+
+// plural writes a count with its noun: "1 file", "3 files".
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
+}

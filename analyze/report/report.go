@@ -83,7 +83,10 @@ var page = template.Must(template.New("page").Funcs(template.FuncMap{
 		return template.HTML(s) // produced by gonum/plot from our own data
 	},
 	"fontFamily": func() template.CSS { return template.CSS(plots.PageFontFamily) },
-	"numeric":    func(t Table, i int) bool { return i < len(t.Numeric) && t.Numeric[i] },
+	// long marks a cell that may break anywhere (a path, a message): other
+	// cells keep their words whole.
+	"long":    func(v string) bool { return len(v) > 24 },
+	"numeric": func(t Table, i int) bool { return i < len(t.Numeric) && t.Numeric[i] },
 	"rowclass": func(t Table, i int) string {
 		if i < len(t.RowClass) {
 			return t.RowClass[i]
@@ -185,7 +188,7 @@ figcaption { color: #4b5a6a; font-size: 0.9em; }
 .scroll { overflow-x: auto; }
 table { border-collapse: collapse; margin: 0.8em 0; font-size: 0.9em; }
 table.wide { width: 100%; }
-td { overflow-wrap: anywhere; }
+td.long { overflow-wrap: anywhere; }
 td.num { white-space: nowrap; }
 ul.runs { margin: 0.3em 0 0.8em 0; padding-left: 1.2em; color: #4b5a6a; }
 p.ref { color: #4b5a6a; font-style: italic; }
@@ -264,7 +267,7 @@ standards, local codes and licensed practice. Listen to filtered files at safe l
 {{define "table"}}<div class="scroll"><table class="sortable{{if gt (len .Columns) 6}} wide{{end}}">
 {{if .Caption}}<caption>{{.Caption}}</caption>{{end}}
 <thead><tr>{{range $i, $c := .Columns}}<th data-numeric="{{if numeric $ $i}}1{{else}}0{{end}}">{{$c}}</th>{{end}}</tr></thead>
-<tbody>{{range $r, $row := .Rows}}<tr class="{{rowclass $ $r}}">{{range $i, $v := $row}}<td{{if numeric $ $i}} class="num"{{end}}>{{$v}}</td>{{end}}</tr>
+<tbody>{{range $r, $row := .Rows}}<tr class="{{rowclass $ $r}}">{{range $i, $v := $row}}<td{{if numeric $ $i}} class="num"{{else if long $v}} class="long"{{end}}>{{$v}}</td>{{end}}</tr>
 {{end}}</tbody>
 </table></div>{{end}}
 `
