@@ -66,6 +66,7 @@ type FileJob struct {
 type StageSummary struct {
 	Family   string    `json:"family"`
 	Response string    `json:"response,omitempty"`
+	Curve    string    `json:"curve,omitempty"` // a weighting stage's curve
 	Order    int       `json:"order"`
 	Sections int       `json:"sections"`
 	EdgesHz  []float64 `json:"edges_hz"`
@@ -95,9 +96,6 @@ type FileResult struct {
 	Seconds       float64
 	Status        string
 	Error         string
-	// Err is the error behind Error, for a caller that must tell cases
-	// apart (a design error naming a spec key, say); nil when done.
-	Err error
 }
 
 // Statuses of a FileResult.
@@ -141,7 +139,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	defer func() {
 		res.Seconds = time.Since(start).Seconds()
 		if err != nil {
-			res.Error, res.Err = err.Error(), err
+			res.Error = err.Error()
 		} else {
 			res.Status = StatusDone
 		}
@@ -168,7 +166,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	}
 	res.Warnings = append(res.Warnings, filt.Warnings()...)
 	for _, st := range filt.Stages {
-		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Curve: st.Spec.Curve, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 	}
 	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()
