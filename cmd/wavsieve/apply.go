@@ -15,6 +15,7 @@ import (
 
 	"github.com/spf13/pflag"
 	"github.com/wavsieve/wavsieve/analyze/verify"
+	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
@@ -255,6 +256,19 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	prog := newProgress(stderr, items, !o.noProgress)
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
+	for i, r := range results {
+		// A value given by a flag is named by its flag, not its spec key:
+		// a file that failed at its rate is designed again (it takes
+		// microseconds) for the typed error.
+		if r.Status != process.StatusFailed || r.SampleRate == 0 || o.sf.file != "" {
+			continue
+		}
+		if _, err := design.Design(spec, float64(r.SampleRate)); err != nil {
+			if _, ok := design.ValueOf(err); ok {
+				results[i].Error = fmt.Sprintf("%s: at this file's %d Hz rate: %v", r.Input, r.SampleRate, o.sf.valueError(err))
+			}
+		}
+	}
 
 	var verified []*verify.Result
 	verdict := ""
