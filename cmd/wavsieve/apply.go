@@ -176,7 +176,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	} else {
 		popt.OutputDir = o.output
 	}
-	found, err := process.Discover(fs.Args(), popt.Recursive)
+	found, err := process.Discover(fs.Args(), popt.Recursive, popt.OutputDir)
 	if err != nil {
 		return report(stderr, "apply", err, "")
 	}
