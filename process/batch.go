@@ -210,7 +210,11 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 			r.Close()
 		}
 		it.Source = f
-		if !opt.Replace && f.Err == nil && completeOutput(f, out) {
+		if st, err := os.Lstat(out); err == nil && st.Mode()&fs.ModeSymlink != 0 && !opt.Replace && it.Refuse == "" {
+			// A link at the output name points at a file this run did not
+			// write: never count it as the output.
+			it.Refuse = fmt.Sprintf("%s: the output %s is a symbolic link, not a file a run wrote; remove it, or give --replace to write the output in its place", f.Path, out)
+		} else if !opt.Replace && f.Err == nil && it.Refuse == "" && completeOutput(f, out) {
 			it.Skip, it.Refuse = skipOrRefuse(f, out, opt)
 		}
 		items = append(items, it)
