@@ -112,7 +112,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.shard, "shard", "", "process only share `K/N` of the inputs (see above)")
 	fs.BoolVarP(&o.dryRun, "dry-run", "n", false, "print the design for every file and write nothing")
 	fs.BoolVar(&o.asJSON, "json", false, "print the run manifest as JSON on stdout")
-	fs.StringVar(&o.manifest, "manifest", "", "write the manifest to `base`.json and base.csv (default: in the output folder)")
+	fs.StringVar(&o.manifest, "manifest", "", "write the run record to `base`.json and base.csv, base.K-of-N with --shard (default: wavsieve-manifest in the output folder)")
 	fs.StringVar(&o.sampleFmt, "sample-format", "", "output samples: pcm16, pcm24, pcm32, float32 or float64 (default: the input's)")
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
 	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
