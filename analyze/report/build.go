@@ -43,11 +43,14 @@ type verifyDoc struct {
 		FrequencyHz float64  `json:"frequency_hz"`
 		Kind        string   `json:"kind"`
 		DesignedDB  *float64 `json:"designed_db"`
-		MeasuredDB  *float64 `json:"measured_db"`
-		LimitDB     *float64 `json:"limit_db"`
-		MarginDB    *float64 `json:"margin_db"`
-		Verdict     string   `json:"verdict"`
-		Reason      string   `json:"reason"`
+		// DesignRange is the design across the reading's resolution, the
+		// range the verdict used.
+		DesignRange *verify.Pair `json:"design_range_db"`
+		MeasuredDB  *float64     `json:"measured_db"`
+		LimitDB     *float64     `json:"limit_db"`
+		MarginDB    *float64     `json:"margin_db"`
+		Verdict     string       `json:"verdict"`
+		Reason      string       `json:"reason"`
 	} `json:"checks"`
 }
 
@@ -162,7 +165,7 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 				Columns: []string{"frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
 				Numeric: []bool{true, false, true, true, true, true, false, false}}
 			for _, c := range vd.Checks {
-				t.Rows = append(t.Rows, []string{fmtHz(c.FrequencyHz), c.Kind, fmtPtr(c.DesignedDB), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason})
+				t.Rows = append(t.Rows, []string{fmtHz(c.FrequencyHz), c.Kind, designedCell(c.DesignedDB, c.DesignRange), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason})
 				t.RowClass = append(t.RowClass, c.Verdict)
 			}
 			sec.Tables = append(sec.Tables, t)
@@ -423,3 +426,20 @@ func fmtPtr(v *float64) string {
 }
 
 func fmtHz(v float64) string { return strconv.FormatFloat(v, 'g', 7, 64) }
+
+// designedCell is the designed response with the design range the
+// verdict used, when that range is wider than the printed value.
+func designedCell(d *float64, r *verify.Pair) string {
+	v := fmtPtr(d)
+	if r == nil || math.IsInf(r[0], 0) && math.IsInf(r[1], 0) {
+		return v
+	}
+	lo, hi := fmt.Sprintf("%.2f", r[0]), fmt.Sprintf("%.2f", r[1])
+	if math.IsInf(r[0], -1) {
+		lo = "-inf"
+	}
+	if lo == hi {
+		return v
+	}
+	return v + " (" + lo + ".." + hi + ")"
+}

@@ -121,7 +121,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")
 	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "let NaN and infinite float samples through instead of refusing the file")
 	fs.BoolVar(&o.noProgress, "no-progress", false, "no progress display on a terminal")
-	verifyRuns := fs.Bool("verify", false, "measure every file written against the spec (as wavsieve verify) and record the verdicts in the manifest")
+	verifyRuns := fs.Bool("verify", false, "measure every file written against the spec (as wavsieve verify) and record the verdicts (pass, fail, inconclusive) in the manifest; a failed verification makes the exit code 1")
 	help := fs.BoolP("help", "h", false, "show this help")
 	if err := fs.Parse(args); err != nil {
 		return report(stderr, "apply", usagef("%v", err), "")
@@ -450,7 +450,7 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 			failed++
 		} else {
 			for _, st := range filt.Stages {
-				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Curve: st.Spec.Curve, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 			}
 		}
 		files = append(files, r)
@@ -489,6 +489,9 @@ func stageLine(s process.StageSummary) string {
 	what := s.Family
 	if s.Response != "" {
 		what += " " + s.Response
+	}
+	if s.Curve != "" {
+		what += " " + s.Curve
 	}
 	var e []string
 	for _, hz := range s.EdgesHz {

@@ -367,7 +367,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 	what := fmt.Sprintf("%s against %s", r.Output, r.Input)
 	switch r.Method {
 	case "tone probe":
-		what = fmt.Sprintf("tone probe in the format of %s, one tone per check frequency", r.Input)
+		what = fmt.Sprintf("tone probe in the format of %s: a steady tone at each check frequency", r.Input)
 	case "noise probe":
 		what = fmt.Sprintf("noise probe in the format of %s", r.Input)
 	}
@@ -387,7 +387,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 		}
 		fmt.Fprintf(w, "  %-2d %-2d %-13s %11s %8s %15s %8s %15s %9s %7s  %s\n", c.Channel, c.Stage, kind, fmtHz(c.FrequencyHz),
 			fmtDB(c.DesignedDB, "%.2f"), fmtPair(c.DesignRangeDB), fmtDB(c.MeasuredDB, "%.2f"), fmtPair(c.IntervalDB), lim, fmtDB(c.MarginDB, "%+.2f"), c.Verdict)
-		if c.Reason != "" && c.Verdict != verify.Pass {
+		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1)) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}
 	}

@@ -152,3 +152,15 @@ func TestApplyWeighting(t *testing.T) {
 		t.Errorf("100 Hz: %.4f dB", got)
 	}
 }
+
+func TestDesignWeightingPlot(t *testing.T) {
+	name := filepath.Join(t.TempDir(), "a.svg")
+	code, out, errs := runCmd(t, "design", "--weighting", "A", "--rate", "44100", "--plot", name)
+	if code != exitOK || !strings.Contains(out, "plot written") {
+		t.Fatalf("exit %d: %s %s", code, out, errs)
+	}
+	b, err := os.ReadFile(name)
+	if err != nil || !strings.Contains(string(b), "class 1 limits, IEC 61672-1:2013 Table 3") {
+		t.Errorf("plot lacks the tolerance band's legend (%v)", err)
+	}
+}
