@@ -29,8 +29,8 @@ Inputs are WAV files, folders (with --recursive, their sub-folders too) and
 glob patterns. The outputs mirror the input tree under the --output folder;
 for a single input file --output may name the output file instead. Inputs
 are never modified, outputs are written to a temporary file and renamed into
-place when complete, and an output that already exists complete is skipped
-unless --replace is given. A file whose rate cannot take the spec (an edge
+place when complete, and an output that already exists complete, made with
+the same design, is skipped unless --replace is given. A file whose rate cannot take the spec (an edge
 at or above its Nyquist frequency) fails alone; the others go on.
 
 With --zero-phase the filter runs forward, then backward over a temporary
@@ -50,10 +50,9 @@ is skipped only when its digest matches, and refused otherwise (give
 K-th, so that N machines given the same command share an archive: in a
 Slurm array of N tasks, --shard $((SLURM_ARRAY_TASK_ID+1))/N (N written
 out, so that resubmitting one task keeps the shares); in a Kubernetes
-indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
-share writes its own record, wavsieve-manifest.K-of-N.json, holding the
-whole input list; 'wavsieve gather DIR' merges them and lists what is
-missing.
+indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each share writes
+its own record, wavsieve-manifest.K-of-N.json, holding the whole input
+list; 'wavsieve gather DIR' merges them and lists what is missing.
 
 --weighting CURVE adds a standard weighting (A, C, Z; Wb ... Wm) after the
 other stages, or alone ('wavsieve help weighting'). A level computed from
