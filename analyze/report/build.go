@@ -79,6 +79,12 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 		return Report{}, fmt.Errorf("report: the manifest's spec: %w", err)
 	}
 	r := Report{Title: "wavsieve filtering report", Subtitle: fmt.Sprintf("%d files; spec: %s", len(m.Files), specSummary(spec))}
+	for _, st := range spec.Stages {
+		if st.Curve != "" {
+			r.Notes = append(r.Notes, "These files are weighted ("+st.Curve+"): a weighted level computed from a file is not a sound level meter's or a vibration meter's reading; the microphone or accelerometer, its calibration and the measuring chain are unknown to wavsieve.")
+			break
+		}
+	}
 	t := Table{
 		Caption: "Run manifest (click a heading to sort)",
 		Columns: []string{"input", "output", "status", "rate (Hz)", "channels", "duration (s)", "peak in (dBFS)", "peak out (dBFS)", "clipped", "verified", "seconds", "error"},

@@ -106,6 +106,14 @@ var specFamilies = []specFamily{
   "Wk", "Wm" (ISO 8041-1). No other keys; causal only. See 'wavsieve help
   weighting'. Weighted levels from a file are no sound level meter reading.
     {"family": "weighting", "curve": "A"}`},
+	{"band", `band: one fractional-octave band filter of IEC 61260-1 (base 10):
+  fraction b (1, 2, 3, 6, 12 or 24: 1/b-octave bands) and midband_hz, the
+  nominal (1000, 31.5, 12500) or exact mid-band frequency. A Butterworth
+  band-pass with its -3 dB points on the band edges, of the lowest order
+  whose response at the file's rate lies inside the class 1 mask of
+  IEC 61260-1:2014 (Table 1); 'verify' checks it against that mask. No
+  other keys; causal only. 'wavsieve bands' measures whole banks of them.
+    {"family": "band", "fraction": 3, "midband_hz": 1000}`},
 }
 
 func specHelp() string {
@@ -166,7 +174,13 @@ Stage keys (units in brackets):
   q               [ratio] notch only: constant quality factor instead of
                   bandwidth_hz (width = centre / q), e.g. 30
   odd_harmonics_only  true or false, notch only: notch harmonics 1, 3, 5...
+<<<<<<< HEAD
+  fraction        [b] band only: the bands are 1/b octave: 1, 2, 3, 6, 12 or 24
+  midband_hz      [Hz] band only: nominal or exact IEC 61260-1 mid-band
+                  frequency of the band, e.g. 1000, 31.5 or 12500
+=======
   curve           weighting only: A, C, Z, Wb, Wc, Wd, We, Wf, Wh, Wj, Wk or Wm
+>>>>>>> main
 
 A frequency is a number, or an array of one or two numbers. Every edge must
 lie below the Nyquist frequency (half the sample rate) of each file the spec

@@ -41,6 +41,7 @@ func commands() []command {
 		{"survey", "measure mains hum, drift, rumble and clipping, and suggest a filter", runSurvey},
 		{"report", "make a self-contained HTML report of an apply run or a survey", runReport},
 		{"gather", "merge the records of the shares of a run and list what is missing", runGather},
+		{"bands", "measure octave and fractional-octave band levels of WAV files", runBands},
 	}
 }
 

@@ -277,7 +277,7 @@ func verifyHint(err error) string {
 	case errors.Is(err, verify.ErrUnknownLength):
 		return "rewrite the file with a complete header (wavsieve apply writes one)"
 	}
-	if strings.Contains(err.Error(), "Nyquist") {
+	if errors.Is(err, design.ErrAboveNyquist) {
 		return "every edge must lie below half the sample rate of the file"
 	}
 	return ""
