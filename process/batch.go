@@ -64,7 +64,7 @@ type Item struct {
 // Plan expands inputs (files, folders and glob patterns) into items:
 // Discover, then PlanInputs.
 func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
-	found, err := Discover(inputs, opt.Recursive)
+	found, err := Discover(inputs, opt.Recursive, opt.OutputDir)
 	if err != nil {
 		return nil, err
 	}
@@ -74,8 +74,19 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 // Discover expands inputs (files, folders and glob patterns) into the
 // sorted list of input files, reading nothing but folder listings. WAV
 // files are recognised by their .wav, .bwf or .rf64 extension inside
-// folders; a file named explicitly is taken whatever its name.
-func Discover(inputs []string, recursive bool) ([]Input, error) {
+// folders; a file named explicitly is taken whatever its name. The
+// folders in skip (an output folder inside an input folder) are left out
+// of the walk, so that a run's own outputs never become its inputs.
+func Discover(inputs []string, recursive bool, skip ...string) ([]Input, error) {
+	var skipAbs []string
+	for _, d := range skip {
+		if d == "" {
+			continue
+		}
+		if a, err := filepath.Abs(d); err == nil {
+			skipAbs = append(skipAbs, a)
+		}
+	}
 	var found []Input
 	for _, arg := range inputs {
 		matches := []string{arg}
@@ -105,6 +116,14 @@ func Discover(inputs []string, recursive bool) ([]Input, error) {
 				if d.IsDir() {
 					if path != p && !recursive {
 						return filepath.SkipDir
+					}
+					if path != p && len(skipAbs) > 0 {
+						a, _ := filepath.Abs(path)
+						for _, s := range skipAbs {
+							if a == s {
+								return filepath.SkipDir
+							}
+						}
 					}
 					return nil
 				}
@@ -191,7 +210,11 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 			r.Close()
 		}
 		it.Source = f
-		if !opt.Replace && f.Err == nil && completeOutput(f, out) {
+		if st, err := os.Lstat(out); err == nil && st.Mode()&fs.ModeSymlink != 0 && !opt.Replace && it.Refuse == "" {
+			// A link at the output name points at a file this run did not
+			// write: never count it as the output.
+			it.Refuse = fmt.Sprintf("%s: the output %s is a symbolic link, not a file a run wrote; remove it, or give --replace to write the output in its place", f.Path, out)
+		} else if !opt.Replace && f.Err == nil && it.Refuse == "" && completeOutput(f, out) {
 			it.Skip, it.Refuse = skipOrRefuse(f, out, opt)
 		}
 		items = append(items, it)

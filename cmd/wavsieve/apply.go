@@ -30,8 +30,8 @@ Inputs are WAV files, folders (with --recursive, their sub-folders too) and
 glob patterns. The outputs mirror the input tree under the --output folder;
 for a single input file --output may name the output file instead. Inputs
 are never modified, outputs are written to a temporary file and renamed into
-place when complete, and an output that already exists complete is skipped
-unless --replace is given. A file whose rate cannot take the spec (an edge
+place when complete, and an output that already exists complete, made with
+the same design, is skipped unless --replace is given. A file whose rate cannot take the spec (an edge
 at or above its Nyquist frequency) fails alone; the others go on.
 
 With --zero-phase the filter runs forward, then backward over a temporary
@@ -51,10 +51,9 @@ is skipped only when its digest matches, and refused otherwise (give
 K-th, so that N machines given the same command share an archive: in a
 Slurm array of N tasks, --shard $((SLURM_ARRAY_TASK_ID+1))/N (N written
 out, so that resubmitting one task keeps the shares); in a Kubernetes
-indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
-share writes its own record, wavsieve-manifest.K-of-N.json, holding the
-whole input list; 'wavsieve gather DIR' merges them and lists what is
-missing.
+indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each share writes
+its own record, wavsieve-manifest.K-of-N.json, holding the whole input
+list; 'wavsieve gather DIR' merges them and lists what is missing.
 
 --weighting CURVE adds a standard weighting (A, C, Z; Wb ... Wm) after the
 other stages, or alone ('wavsieve help weighting'). A level computed from
@@ -113,7 +112,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.shard, "shard", "", "process only share `K/N` of the inputs (see above)")
 	fs.BoolVarP(&o.dryRun, "dry-run", "n", false, "print the design for every file and write nothing")
 	fs.BoolVar(&o.asJSON, "json", false, "print the run manifest as JSON on stdout")
-	fs.StringVar(&o.manifest, "manifest", "", "write the manifest to `base`.json and base.csv (default: in the output folder)")
+	fs.StringVar(&o.manifest, "manifest", "", "write the run record to `base`.json and base.csv, base.K-of-N with --shard (default: wavsieve-manifest in the output folder)")
 	fs.StringVar(&o.sampleFmt, "sample-format", "", "output samples: pcm16, pcm24, pcm32, float32 or float64 (default: the input's)")
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
 	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
@@ -177,7 +176,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	} else {
 		popt.OutputDir = o.output
 	}
-	found, err := process.Discover(fs.Args(), popt.Recursive)
+	found, err := process.Discover(fs.Args(), popt.Recursive, popt.OutputDir)
 	if err != nil {
 		return report(stderr, "apply", err, "")
 	}
