@@ -13,6 +13,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
 // Extension chooses how the zero-phase functions extend the signal
@@ -500,6 +501,7 @@ type spillStore struct {
 	pending    [2]int
 	cur        int // buffer the forward pass fills next
 	fileFrames int // frames written to the file
+	unlinked   bool
 }
 
 type spillReq struct {
@@ -606,7 +608,9 @@ func (s *spillStore) close() {
 	}
 	if s.f != nil {
 		s.f.Close()
-		os.Remove(s.f.Name())
+		if !s.unlinked {
+			os.Remove(s.f.Name())
+		}
 		s.f = nil
 	}
 	if s.release != nil {
@@ -655,9 +659,15 @@ func (s *spillStore) memSpan(at int) []float64 {
 // previous transfer is done.
 func (s *spillStore) fileBuf() ([]float64, error) {
 	if s.f == nil {
-		f, err := os.CreateTemp(s.dir, "wavsieve-spill-*.f64")
+		f, err := wavio.CreateTemp(s.dir, "wavsieve-spill.f64")
 		if err != nil {
 			return nil, fmt.Errorf("process: zero-phase spill: %w", err)
+		}
+		// Unlinked at once: the open file lives on until it is closed,
+		// and a killed run leaves nothing on disk. (Where the system
+		// refuses, close removes it, or the next run's RemoveStale.)
+		if os.Remove(f.Name()) == nil {
+			s.unlinked = true
 		}
 		s.f = f
 		s.startIO()

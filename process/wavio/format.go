@@ -3,6 +3,7 @@ package wavio
 import (
 	"errors"
 	"fmt"
+	"io"
 )
 
 // Encoding is how a sample is stored: integer PCM or IEEE float.
@@ -121,6 +122,12 @@ const (
 	// WarnHeader: a header field is inconsistent but not needed to read the
 	// samples (for example valid bits of 0, or a wrong byte rate).
 	WarnHeader
+	// WarnSecondData: a second data chunk follows the first; it is not
+	// read.
+	WarnSecondData
+	// WarnOmitted: more warnings than the Reader lists; this one counts
+	// the rest.
+	WarnOmitted
 )
 
 // Warning is a defect the Reader tolerated.
@@ -133,10 +140,27 @@ type Warning struct {
 func (w Warning) String() string { return fmt.Sprintf("offset %d: %s", w.Offset, w.Msg) }
 
 // Chunk is a RIFF chunk other than fmt, data, fact and ds64, kept byte-exact.
+//
+// Its body is Data or, when Source is set, the Length bytes at Offset
+// in Source: the Reader keeps a chunk too large to hold in memory that
+// way, and the Writer copies it from there when it writes the chunk, so
+// Source must stay open until the Writer is closed.
 type Chunk struct {
 	ID        string // four characters, for example "bext", "LIST", "iXML"
-	Data      []byte // the body, without the pad byte
+	Data      []byte // the body, without the pad byte (nil with Source)
 	AfterData bool   // the chunk came after the data chunk
+
+	Source io.ReaderAt // where the body is, instead of Data
+	Offset int64       // its offset in Source
+	Length int64       // its length
+}
+
+// Size returns the length of the chunk's body.
+func (c Chunk) Size() int64 {
+	if c.Source != nil {
+		return c.Length
+	}
+	return int64(len(c.Data))
 }
 
 // Format tags and the sub-format GUID tail of WAVE_FORMAT_EXTENSIBLE
@@ -181,10 +205,8 @@ func checkWritable(f Format) error {
 	}
 	switch f.Encoding {
 	case PCM:
-		switch f.Bits {
-		case 8, 16, 24, 32:
-		default:
-			return UnsupportedError(fmt.Sprintf("output: %d-bit pcm (the writer takes 8, 16, 24 or 32)", f.Bits))
+		if f.Bits < 8 || f.Bits > 64 || f.Bits%8 != 0 {
+			return UnsupportedError(fmt.Sprintf("output: %d-bit pcm (the writer takes containers of 8 to 64 bits in whole bytes)", f.Bits))
 		}
 		if f.ValidBits < 0 || f.ValidBits > f.Bits {
 			return fmt.Errorf("wavio: invalid valid bits %d for a %d-bit container", f.ValidBits, f.Bits)
