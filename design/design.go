@@ -1,6 +1,7 @@
 package design
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -76,15 +77,25 @@ type Check struct {
 // the requested Hz. A spec that cannot be realised at this rate is an
 // error; nothing is clamped.
 func Design(spec Spec, rate float64) (*Filter, error) {
+	return design(context.Background(), spec, rate)
+}
+
+func design(ctx context.Context, spec Spec, rate float64) (*Filter, error) {
 	if !(rate > 0) || math.IsInf(rate, 0) {
 		return nil, fmt.Errorf("design: invalid sample rate %g Hz: it must be positive and finite", rate)
 	}
 	if len(spec.Stages) == 0 {
 		return nil, errors.New("design: invalid spec: no stages")
 	}
+	if len(spec.Stages) > MaxStages {
+		return nil, fmt.Errorf("design: invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(spec.Stages), MaxStages)
+	}
 	f := &Filter{SampleRate: rate, ZeroPhase: spec.ZeroPhase}
 	for i, st := range spec.Stages {
-		d, err := designStage(st, rate, spec.ZeroPhase)
+		if err := ctx.Err(); err != nil {
+			return nil, fmt.Errorf("design: stopped before stage %d: %w", i+1, err)
+		}
+		d, err := designStage(ctx, st, rate, spec.ZeroPhase, f.Stages)
 		if err != nil {
 			if len(spec.Stages) > 1 {
 				return nil, fmt.Errorf("stage %d: %w", i+1, err)
@@ -287,7 +298,7 @@ func db(h complex128) float64 {
 }
 
 // designStage designs one stage at rate.
-func designStage(st Stage, rate float64, zeroPhase bool) (Designed, error) {
+func designStage(ctx context.Context, st Stage, rate float64, zeroPhase bool, before []Designed) (Designed, error) {
 	if err := validate(st, rate); err != nil {
 		return Designed{}, err
 	}
@@ -301,6 +312,9 @@ func designStage(st Stage, rate float64, zeroPhase bool) (Designed, error) {
 		d.Form = FormNotch
 		centres, widths, err := notchCentres(st, rate)
 		if err != nil {
+			return Designed{}, err
+		}
+		if err := countSections(before, len(centres)); err != nil {
 			return Designed{}, err
 		}
 		// Each pass is down by 3/passes dB at the edges, so that the
@@ -355,7 +369,16 @@ func designStage(st Stage, rate float64, zeroPhase bool) (Designed, error) {
 	if r := maxRadius(d.ZPK.Poles); !(r < 1) {
 		return Designed{}, fmt.Errorf("design: the %s design has a pole at radius %.15g, on or outside the unit circle: it would be unstable; lower the order or move the edges away from 0 Hz and Nyquist", st.Family, r)
 	}
+	if err := ctx.Err(); err != nil {
+		return Designed{}, fmt.Errorf("design: stopped: %w", err)
+	}
 	d.Sections = ToSections(d.ZPK)
+	if err := countSections(before, len(d.Sections)); err != nil {
+		return Designed{}, err
+	}
+	if err := ctx.Err(); err != nil {
+		return Designed{}, fmt.Errorf("design: stopped: %w", err)
+	}
 	d.Checks = checks(d, rate, passes)
 	return d, nil
 }

@@ -92,7 +92,14 @@ type Spec struct {
 // ParseSpec reads a spec file: either one stage object, or an object
 // with a "stages" array. Unknown keys are errors, so that a misspelt key
 // is not silently ignored.
+//
+// A UTF-8 byte-order mark at the start is ignored. A spec of more than
+// MaxSpecBytes, or of more than MaxStages stages, is refused.
 func ParseSpec(data []byte) (Spec, error) {
+	if len(data) > MaxSpecBytes {
+		return Spec{}, fmt.Errorf("design: invalid spec: %d bytes, more than the limit of %d", len(data), MaxSpecBytes)
+	}
+	data = trimBOM(data)
 	var probe map[string]json.RawMessage
 	if err := json.Unmarshal(data, &probe); err != nil {
 		return Spec{}, fmt.Errorf("design: spec is not a JSON object: %w", err)
@@ -106,6 +113,9 @@ func ParseSpec(data []byte) (Spec, error) {
 		}
 		if len(s.Stages) == 0 {
 			return Spec{}, fmt.Errorf("design: invalid spec: \"stages\" is empty")
+		}
+		if len(s.Stages) > MaxStages {
+			return Spec{}, fmt.Errorf("design: invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(s.Stages), MaxStages)
 		}
 		return s, nil
 	}

@@ -51,6 +51,12 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 	}
 	type src struct{ path, rel string }
 	var found []src
+	// An output folder inside an input folder is left out of the walk, so
+	// that a run does not take its own outputs for inputs.
+	outDir := ""
+	if opt.OutputDir != "" {
+		outDir, _ = filepath.Abs(opt.OutputDir)
+	}
 	for _, arg := range inputs {
 		matches := []string{arg}
 		if strings.ContainsAny(arg, "*?[") {
@@ -78,6 +84,9 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 				}
 				if d.IsDir() {
 					if path != p && !opt.Recursive {
+						return filepath.SkipDir
+					}
+					if a, _ := filepath.Abs(path); path != p && a == outDir {
 						return filepath.SkipDir
 					}
 					return nil
@@ -144,7 +153,13 @@ func isWAVName(n string) bool {
 // frames, channels and the same rate as in. Outputs are only ever
 // renamed into place once finished, so a readable one with the right
 // length is complete.
+//
+// Only a regular file counts: a symbolic link there (even to a WAV file
+// of the right shape) or a FIFO is not an output of this program.
 func completeOutput(in, out string) bool {
+	if st, err := os.Lstat(out); err != nil || !st.Mode().IsRegular() {
+		return false
+	}
 	o, err := wavio.Open(out, nil)
 	if err != nil {
 		return false
@@ -177,12 +192,12 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 		workers = 1
 	}
 	res := make([]FileResult, len(items))
-	if tmpl.SpillMemoryBytes == 0 && workers > 1 {
-		// Workers share the in-memory part of their zero-phase spills, so
-		// that peak memory stays under 200 MB whatever the number of
-		// workers; past it the spill goes to its file.
-		step := int64(spillStep) * 8 // bytes
-		tmpl.SpillMemoryBytes = max(step, int64(spillMemory)/int64(workers)/step*step)
+	if tmpl.SpillMemoryBytes == 0 {
+		// Workers share the in-memory part of their zero-phase spills
+		// and its buffers, so that peak memory stays within MemoryBudget
+		// whatever the number of workers; past it the spill goes to its
+		// file.
+		tmpl.SpillMemoryBytes, tmpl.spillIOBytes = spillShare(workers)
 	}
 	next := make(chan int)
 	var wg sync.WaitGroup

@@ -61,6 +61,8 @@ type ZeroPhaseOptions struct {
 	SpillMemoryBytes int64
 	// BlockFrames is the block length of the passes; 0 means 8192.
 	BlockFrames int
+
+	ioBytes int // each spill file buffer; 0 means spillIOBytes
 }
 
 // EdgeReport describes the edges of a zero-phase run.
@@ -128,7 +130,7 @@ func ZeroPhase(dst FrameSink, src FrameSource, sos []design.Section, cfg Config,
 	if opt.SpillMemoryBytes != 0 {
 		mem = max(0, opt.SpillMemoryBytes)
 	}
-	st := newSpillStore(z.ch, int(mem/8)/spillStep*spillStep, z.block, opt.TempDir)
+	st := newSpillStore(z.ch, int(mem/8)/spillStep*spillStep, z.block, opt.ioBytes, opt.TempDir)
 	defer st.close()
 	rep, err := z.run(src, st)
 	if err != nil {
@@ -530,9 +532,12 @@ var (
 // newSpillStore reserves memSamples of memory (rounded down to whole
 // frames) and the two file buffers in one mapping (getSpillMemory),
 // which the system backs only as it is touched.
-func newSpillStore(ch, memSamples, block int, dir string) *spillStore {
+func newSpillStore(ch, memSamples, block, ioBytes int, dir string) *spillStore {
 	s := &spillStore{ch: ch, dir: dir, memFrames: memSamples / ch}
-	s.ioFrames = max(block, spillIOBytes/8/ch)
+	if ioBytes <= 0 {
+		ioBytes = spillIOBytes
+	}
+	s.ioFrames = max(block, ioBytes/8/ch)
 	memN, ioN := s.memFrames*ch, s.ioFrames*ch
 	all, release := getSpillMemory(memN + 2*ioN)
 	s.mem, s.release = all[:memN:memN], release

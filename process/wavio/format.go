@@ -195,6 +195,15 @@ func unsupportedTag(tag uint16) error {
 	return UnsupportedError(fmt.Sprintf("encoding: format tag 0x%04x", tag))
 }
 
+// Writable reports whether the Writer can produce f: nil, or an error
+// saying what in f it cannot write.
+func (f Format) Writable() error {
+	if f.ValidBits == 0 {
+		f.ValidBits = f.Bits
+	}
+	return checkWritable(f)
+}
+
 // checkWritable reports whether the Writer can produce f.
 func checkWritable(f Format) error {
 	if f.SampleRate < 1 || int64(f.SampleRate) > 0xFFFFFFFF {
