@@ -90,6 +90,19 @@ func design(ctx context.Context, spec Spec, rate float64) (*Filter, error) {
 	if len(spec.Stages) > MaxStages {
 		return nil, fmt.Errorf("design: invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(spec.Stages), MaxStages)
 	}
+	// The notch stages' sections are counted before anything is
+	// designed, so that a chain of many large combs is refused at once.
+	notches := 0
+	for _, st := range spec.Stages {
+		if st.Family == Notch && validate(st, rate) == nil {
+			if c, _, err := notchCentres(st, rate); err == nil {
+				notches += len(c)
+			}
+		}
+	}
+	if notches > MaxSections {
+		return nil, fmt.Errorf("design: invalid spec: the notch stages need %d second-order sections at %g Hz, more than the limit of %d; set harmonics to fewer notches", notches, rate, MaxSections)
+	}
 	f := &Filter{SampleRate: rate, ZeroPhase: spec.ZeroPhase}
 	for i, st := range spec.Stages {
 		if err := ctx.Err(); err != nil {

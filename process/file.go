@@ -175,7 +175,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		return res, fmt.Errorf("%s: the output is the input file itself; choose another output", job.Input)
 	}
 	if err := wavio.CheckOutputPath(job.Output); err != nil {
-		return res, fmt.Errorf("%s: %w: it was not written by this program; remove it or choose another output folder", job.Input, err)
+		return res, fmt.Errorf("%s: the output %s: %w; it was not written by this program: remove it or choose another output folder", job.Input, job.Output, err)
 	}
 	r, err := wavio.Open(job.Input, &wavio.ReaderOptions{ZeroNonFinite: job.AllowNonFinite})
 	if err != nil {

@@ -147,6 +147,8 @@ type quantizer struct {
 	lo, hi   float64 // integer range of the valid bits
 	shift    uint    // bits - valid: left-justification in the container
 	width    int     // container bytes
+	minN     int64   // integer range of the valid bits, for wide containers
+	maxN     int64
 	dither   bool
 	rng      splitMix
 	channels int
@@ -284,7 +286,7 @@ func encode(k sampleKind, q *quantizer, src []float64, dst []byte) int {
 					return i
 				}
 			}
-			n := wideInt(math.RoundToEven(v))
+			n := min(max(wideInt(math.RoundToEven(v)), q.minN), q.maxN)
 			u := uint64(n) << shift
 			d := dst[width*i : width*i+width : width*i+width]
 			for j := range d {

@@ -137,7 +137,12 @@ type Warning struct {
 	Msg    string
 }
 
-func (w Warning) String() string { return fmt.Sprintf("offset %d: %s", w.Offset, w.Msg) }
+func (w Warning) String() string {
+	if w.Offset < 0 {
+		return w.Msg
+	}
+	return fmt.Sprintf("offset %d: %s", w.Offset, w.Msg)
+}
 
 // Chunk is a RIFF chunk other than fmt, data, fact and ds64, kept byte-exact.
 //

@@ -15,7 +15,7 @@ type NotRegularError struct {
 }
 
 func (e *NotRegularError) Error() string {
-	return fmt.Sprintf("wavio: %s is %s, not a regular file", e.Path, describeMode(e.Mode))
+	return fmt.Sprintf("wavio: %s, not a regular file", describeMode(e.Mode))
 }
 
 func describeMode(m fs.FileMode) string {

@@ -134,6 +134,8 @@ func NewWriter(ws io.WriteSeeker, opts WriterOptions) (*Writer, error) {
 		w.q.lo, w.q.hi = -w.q.scale, w.q.scale-1
 		w.q.shift = uint(f.Bits - f.ValidBits)
 		w.q.width = f.Bits / 8
+		w.q.maxN = int64(uint64(1)<<(f.ValidBits-1) - 1)
+		w.q.minN = -w.q.maxN - 1
 		w.q.dither = !opts.NoDither
 	}
 	w.seed = opts.DitherSeed
@@ -150,8 +152,8 @@ func NewWriter(ws io.WriteSeeker, opts WriterOptions) (*Writer, error) {
 }
 
 func checkChunk(c Chunk) error {
-	if len(c.ID) != 4 {
-		return fmt.Errorf("wavio: invalid chunk id %q", c.ID)
+	if len(c.ID) != 4 || !isFourCC([]byte(c.ID)) {
+		return fmt.Errorf("wavio: invalid chunk id %q: four printable ASCII characters", c.ID)
 	}
 	switch c.ID {
 	case "fmt ", "data", "fact", "ds64", "RIFF", "RF64", "BW64", "RIFX":
