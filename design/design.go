@@ -2,7 +2,6 @@ package design
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -40,6 +39,8 @@ type Designed struct {
 	// Mask is the tolerance mask of a stage defined by a standard
 	// (weighting, fractional-octave band), nil for the other families.
 	Mask []MaskPoint
+	// Weighting describes a weighting stage's design (nil otherwise).
+	Weighting *WeightingInfo
 
 	NotchHz          []float64 // centres of a notch stage
 	NotchBandwidthHz []float64 // their -3 dB widths (of the effective response)
@@ -52,6 +53,7 @@ const (
 	FormOrder     = "order"
 	FormTolerance = "tolerance"
 	FormNotch     = "notch"
+	FormStandard  = "standard" // a curve defined by a standard (weighting)
 )
 
 // Check is the designed response at one frequency of the spec. The
@@ -82,13 +84,13 @@ func Design(spec Spec, rate float64) (*Filter, error) {
 
 func design(ctx context.Context, spec Spec, rate float64) (*Filter, error) {
 	if !(rate > 0) || math.IsInf(rate, 0) {
-		return nil, fmt.Errorf("design: invalid sample rate %g Hz: it must be positive and finite", rate)
+		return nil, errorf(ErrInvalid, "invalid sample rate %g Hz: it must be positive and finite", rate)
 	}
 	if len(spec.Stages) == 0 {
-		return nil, errors.New("design: invalid spec: no stages")
+		return nil, errorf(ErrInvalid, "invalid spec: no stages")
 	}
 	if len(spec.Stages) > MaxStages {
-		return nil, fmt.Errorf("design: invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(spec.Stages), MaxStages)
+		return nil, errorf(ErrInvalid, "invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(spec.Stages), MaxStages)
 	}
 	// The notch stages' sections are counted before anything is
 	// designed, so that a chain of many large combs is refused at once.
@@ -101,7 +103,7 @@ func design(ctx context.Context, spec Spec, rate float64) (*Filter, error) {
 		}
 	}
 	if notches > MaxSections {
-		return nil, fmt.Errorf("design: invalid spec: the notch stages need %d second-order sections at %g Hz, more than the limit of %d; set harmonics to fewer notches", notches, rate, MaxSections)
+		return nil, errorf(ErrOrderLimit, "the notch stages need %d second-order sections at %g Hz, more than the limit of %d; set harmonics to fewer notches", notches, rate, MaxSections)
 	}
 	f := &Filter{SampleRate: rate, ZeroPhase: spec.ZeroPhase}
 	for i, st := range spec.Stages {
@@ -310,82 +312,27 @@ func db(h complex128) float64 {
 	return 20 * math.Log10(math.Max(math.Hypot(real(h), imag(h)), 1e-300))
 }
 
-// designStage designs one stage at rate.
+// designStage designs one stage at rate through its row of the family
+// table; before are the stages designed so far, for the section limit.
 func designStage(ctx context.Context, st Stage, rate float64, zeroPhase bool, before []Designed) (Designed, error) {
 	if err := validate(st, rate); err != nil {
 		return Designed{}, err
 	}
+	fam, _ := lookupFamily(st.Family) // validate has found it
 	d := Designed{Spec: st, Family: st.Family, Response: st.Response}
 	passes := 1.0
 	if zeroPhase {
 		passes = 2
 	}
-	switch {
-	case st.Family == Notch:
-		d.Form = FormNotch
-		centres, widths, err := notchCentres(st, rate)
-		if err != nil {
-			return Designed{}, err
-		}
-		if err := countSections(before, len(centres)); err != nil {
-			return Designed{}, err
-		}
-		// Each pass is down by 3/passes dB at the edges, so that the
-		// effective response is -3 dB there.
-		g2 := math.Pow(0.5, 1/passes)
-		var all ZPK
-		all.Gain = 1
-		for i, c := range centres {
-			n := notchZPK(c, widths[i], rate, g2)
-			all.Zeros = append(all.Zeros, n.Zeros...)
-			all.Poles = append(all.Poles, n.Poles...)
-			all.Gain *= n.Gain
-			d.notchGains = append(d.notchGains, n.Gain)
-		}
-		d.ZPK, d.Order = all, len(centres)
-		d.NotchHz, d.NotchBandwidthHz = centres, widths
-		d.EdgesHz = centres
-	case st.Order > 0:
-		d.Form = FormOrder
-		d.Order = st.Order
-		wn := make([]float64, len(st.CutoffHz))
-		for i, hz := range st.CutoffHz {
-			wn[i] = Prewarp(hz, rate)
-		}
-		d.ZPK = Bilinear(analogDesign(st, st.Order, wn, st.RippleDB, st.AttenuationDB))
-		d.EdgesHz = append([]float64(nil), st.CutoffHz...)
-	default:
-		d.Form = FormTolerance
-		pb := make([]float64, len(st.PassbandHz))
-		for i, hz := range st.PassbandHz {
-			pb[i] = Prewarp(hz, rate)
-		}
-		sb := make([]float64, len(st.StopbandHz))
-		for i, hz := range st.StopbandHz {
-			sb[i] = Prewarp(hz, rate)
-		}
-		rp, rs := st.RippleDB/passes, st.AttenuationDB/passes
-		n, wn := minOrder(st.Family, st.Response, pb, sb, rp, rs)
-		if n > MaxOrder {
-			return Designed{}, fmt.Errorf("design: the tolerances need a %s filter of order %d, above the limit of %d: widen the transition band, allow more ripple or ask for less attenuation", st.Family, n, MaxOrder)
-		}
-		d.Order = n
-		d.ZPK = Bilinear(analogDesign(st, n, wn, rp, rs))
-		d.ExactEdge = "passband"
-		for _, w := range wn {
-			d.EdgesHz = append(d.EdgesHz, unwarp(w, rate))
-		}
-	}
-	if want := d.Order * (1 + len(d.Spec.CutoffHz)/2 + len(d.Spec.PassbandHz)/2); d.Form != FormNotch && len(d.ZPK.Poles) != want {
-		return Designed{}, fmt.Errorf("design: the %s design of order %d came out with %d poles instead of %d; lower the order", st.Family, d.Order, len(d.ZPK.Poles), want)
+	if err := fam.build(fam, &d, rate, passes); err != nil {
+		return Designed{}, err
 	}
 	if r := maxRadius(d.ZPK.Poles); !(r < 1) {
-		return Designed{}, fmt.Errorf("design: the %s design has a pole at radius %.15g, on or outside the unit circle: it would be unstable; lower the order or move the edges away from 0 Hz and Nyquist", st.Family, r)
+		return Designed{}, errorf(ErrUnstable, "the %s design has a pole at radius %.15g, on or outside the unit circle: it would be unstable; lower the order or move the edges away from 0 Hz and Nyquist", st.Family, r)
 	}
-	if err := ctx.Err(); err != nil {
-		return Designed{}, fmt.Errorf("design: stopped: %w", err)
+	if d.Sections == nil {
+		d.Sections = ToSections(d.ZPK)
 	}
-	d.Sections = ToSections(d.ZPK)
 	if err := countSections(before, len(d.Sections)); err != nil {
 		return Designed{}, err
 	}
@@ -394,37 +341,6 @@ func designStage(ctx context.Context, st Stage, rate float64, zeroPhase bool, be
 	}
 	d.Checks = checks(d, rate, passes)
 	return d, nil
-}
-
-// analogDesign returns the analog filter on the pre-warped axis.
-func analogDesign(st Stage, n int, wn []float64, rp, rs float64) ZPK {
-	var proto ZPK
-	switch st.Family {
-	case Butterworth:
-		proto = butterPrototype(n)
-	case Chebyshev1:
-		proto = cheby1Prototype(n, rp)
-	case Chebyshev2:
-		proto = cheby2Prototype(n, rs)
-	case Elliptic:
-		proto = ellipPrototype(n, rp, rs)
-	case Bessel:
-		norm := st.BesselNorm
-		if norm == "" {
-			norm = NormPhase
-		}
-		proto = besselPrototype(n, norm)
-	}
-	switch st.Response {
-	case Lowpass:
-		return toLowpass(proto, wn[0])
-	case Highpass:
-		return toHighpass(proto, wn[0])
-	case Bandpass:
-		return toBandpass(proto, math.Sqrt(wn[0]*wn[1]), wn[1]-wn[0])
-	default:
-		return toBandstop(proto, math.Sqrt(wn[0]*wn[1]), wn[1]-wn[0])
-	}
 }
 
 // checks evaluates the designed stage at each edge of its spec.
@@ -444,17 +360,10 @@ func checks(d Designed, rate, passes float64) []Check {
 			out = append(out, Check{FrequencyHz: hz, Kind: "stopband", DesignedDB: v, LimitDB: -st.AttenuationDB, HasLimit: true, MarginDB: -st.AttenuationDB - v})
 		}
 	case FormOrder:
-		nominal, ok := 0.0, true
-		switch st.Family {
-		case Butterworth:
-			nominal = 10 * math.Log10(0.5)
-		case Chebyshev1, Elliptic:
-			nominal = -st.RippleDB
-		case Chebyshev2:
-			nominal = -st.AttenuationDB
-		case Bessel:
-			ok = st.BesselNorm == NormMagnitude
-			nominal = 10 * math.Log10(0.5)
+		fam, _ := lookupFamily(st.Family)
+		nominal, ok := 0.0, false
+		if fam.cutoffDB != nil {
+			nominal, ok = fam.cutoffDB(st)
 		}
 		nominal *= passes
 		for _, hz := range st.CutoffHz {

@@ -1,7 +1,6 @@
 package design
 
 import (
-	"bytes"
 	"context"
 	"fmt"
 )
@@ -21,13 +20,6 @@ const (
 	MaxSections = 2048
 )
 
-// utf8BOM is the byte-order mark some editors write at the start of a
-// UTF-8 file (Unicode 15.0, section 23.8); JSON parsers may ignore it
-// (RFC 8259, section 8.1), and ParseSpec does.
-var utf8BOM = []byte{0xEF, 0xBB, 0xBF}
-
-func trimBOM(b []byte) []byte { return bytes.TrimPrefix(b, utf8BOM) }
-
 // CheckSpec checks what can be checked of a spec without a sample rate:
 // the number of stages, and every stage's keys, family, response, order,
 // levels and the order of its edges. A spec that fails it fails at every
@@ -35,10 +27,10 @@ func trimBOM(b []byte) []byte { return bytes.TrimPrefix(b, utf8BOM) }
 // above its Nyquist frequency, or a minimum order above MaxOrder).
 func CheckSpec(spec Spec) error {
 	if len(spec.Stages) == 0 {
-		return fmt.Errorf("design: invalid spec: no stages")
+		return errorf(ErrInvalid, "invalid spec: no stages")
 	}
 	if len(spec.Stages) > MaxStages {
-		return fmt.Errorf("design: invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(spec.Stages), MaxStages)
+		return errorf(ErrInvalid, "invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(spec.Stages), MaxStages)
 	}
 	for i, st := range spec.Stages {
 		// At a rate this high every edge lies below Nyquist, so only
@@ -68,7 +60,7 @@ func countSections(stages []Designed, next int) error {
 		n += len(d.Sections)
 	}
 	if n > MaxSections {
-		return fmt.Errorf("design: invalid spec: the chain needs more than %d second-order sections (%d so far); use fewer stages or notches (set harmonics)", MaxSections, n)
+		return errorf(ErrOrderLimit, "the chain needs more than %d second-order sections (%d so far); use fewer stages or notches (set harmonics)", MaxSections, n)
 	}
 	return nil
 }

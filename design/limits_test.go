@@ -31,7 +31,7 @@ func TestSpecLimits(t *testing.T) {
 	stages := func(n int) string {
 		return `{"stages":[` + strings.TrimSuffix(strings.Repeat(stage+",", n), ",") + `]}`
 	}
-	comb := Stage{Family: Notch, FundamentalHz: 10, BandwidthHz: 1} // every harmonic: 2399 at 48 kHz
+	comb := Stage{Family: Notch, FundamentalHz: 10, BandwidthHz: 1, Harmonics: 2000} // 2000 below Nyquist at 48 kHz
 	for _, tc := range []struct {
 		name string
 		run  func() error

@@ -3,7 +3,6 @@ package design
 import (
 	"bytes"
 	"encoding/json"
-	"fmt"
 )
 
 // Families, responses and Bessel normalisations accepted in a Stage.
@@ -71,7 +70,7 @@ type Stage struct {
 	BesselNorm    string  `json:"bessel_norm,omitempty"`
 
 	// Notch stages: a second-order notch at FundamentalHz and at its
-	// harmonics up to number Harmonics (0: every harmonic below Nyquist),
+	// harmonics up to number Harmonics (0: those below DefaultNotchLimitHz),
 	// each BandwidthHz wide at -3 dB, or of constant quality factor Q
 	// (bandwidth = centre / Q) when Q is set instead.
 	FundamentalHz float64 `json:"fundamental_hz,omitempty"`
@@ -79,6 +78,16 @@ type Stage struct {
 	BandwidthHz   float64 `json:"bandwidth_hz,omitempty"`
 	Q             float64 `json:"q,omitempty"`
 	OddOnly       bool    `json:"odd_harmonics_only,omitempty"`
+
+	// Fractional-octave band stages (family "band"): the band of the
+	// 1/Fraction-octave series of IEC 61260-1 whose nominal or exact
+	// mid-band frequency is MidbandHz.
+	Fraction  int     `json:"fraction,omitempty"`
+	MidbandHz float64 `json:"midband_hz,omitempty"`
+
+	// Weighting stages: the curve of a standard (IEC 61672-1 A, C, Z;
+	// ISO 8041-1 Wb ... Wm).
+	Curve string `json:"curve,omitempty"`
 }
 
 // Spec is a chain of stages run in order. With ZeroPhase set the chain
@@ -91,31 +100,34 @@ type Spec struct {
 
 // ParseSpec reads a spec file: either one stage object, or an object
 // with a "stages" array. Unknown keys are errors, so that a misspelt key
-// is not silently ignored.
-//
-// A UTF-8 byte-order mark at the start is ignored. A spec of more than
-// MaxSpecBytes, or of more than MaxStages stages, is refused.
+// is not silently ignored. A syntax error, an unknown key or a value of
+// the wrong type is a *SpecError with its line and column. A leading
+// UTF-8 byte-order mark is ignored. A spec of more than MaxSpecBytes, or
+// of more than MaxStages stages, is refused.
 func ParseSpec(data []byte) (Spec, error) {
 	if len(data) > MaxSpecBytes {
-		return Spec{}, fmt.Errorf("design: invalid spec: %d bytes, more than the limit of %d", len(data), MaxSpecBytes)
+		return Spec{}, errorf(ErrInvalid, "invalid spec: %d bytes, more than the limit of %d", len(data), MaxSpecBytes)
 	}
-	data = trimBOM(data)
+	data = bytes.TrimPrefix(data, utf8BOM)
+	if err := locateSpecError(data); err != nil {
+		return Spec{}, err
+	}
 	var probe map[string]json.RawMessage
 	if err := json.Unmarshal(data, &probe); err != nil {
-		return Spec{}, fmt.Errorf("design: spec is not a JSON object: %w", err)
+		return Spec{}, errorf(ErrInvalid, "spec is not a JSON object: %w", err)
 	}
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
 	if _, ok := probe["stages"]; ok {
 		var s Spec
 		if err := dec.Decode(&s); err != nil {
-			return Spec{}, fmt.Errorf("design: invalid spec: %w", err)
+			return Spec{}, errorf(ErrInvalid, "invalid spec: %w", err)
 		}
 		if len(s.Stages) == 0 {
-			return Spec{}, fmt.Errorf("design: invalid spec: \"stages\" is empty")
+			return Spec{}, errorf(ErrInvalid, "invalid spec: \"stages\" is empty")
 		}
 		if len(s.Stages) > MaxStages {
-			return Spec{}, fmt.Errorf("design: invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(s.Stages), MaxStages)
+			return Spec{}, errorf(ErrInvalid, "invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(s.Stages), MaxStages)
 		}
 		return s, nil
 	}
@@ -124,7 +136,7 @@ func ParseSpec(data []byte) (Spec, error) {
 		ZeroPhase bool `json:"zero_phase,omitempty"`
 	}
 	if err := dec.Decode(&one); err != nil {
-		return Spec{}, fmt.Errorf("design: invalid spec: %w", err)
+		return Spec{}, errorf(ErrInvalid, "invalid spec: %w", err)
 	}
 	return Spec{Stages: []Stage{one.Stage}, ZeroPhase: one.ZeroPhase}, nil
 }

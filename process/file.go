@@ -4,9 +4,11 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"hash/fnv"
 	"io"
 	"math"
 	"os"
+	"path/filepath"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -26,7 +28,8 @@ type FileJob struct {
 	Encoding wavio.Encoding
 	Bits     int
 	// NoDither turns off TPDF dither on integer output; DitherSeed fixes
-	// its seed (0: from the clock; the seed used is reported).
+	// its seed (0: DefaultDitherSeed of the input, so that the same input
+	// gives the same output on every run; the seed used is reported).
 	NoDither   bool
 	DitherSeed uint64
 	// Only lists the channels to filter (from 0); empty means all.
@@ -71,37 +74,42 @@ type FileJob struct {
 type StageSummary struct {
 	Family   string    `json:"family"`
 	Response string    `json:"response,omitempty"`
+	Curve    string    `json:"curve,omitempty"` // a weighting stage's curve
 	Order    int       `json:"order"`
 	Sections int       `json:"sections"`
 	EdgesHz  []float64 `json:"edges_hz"`
 }
 
-// FileResult is the outcome of one file.
+// FileResult is the outcome of one file. Its record (JSON and CSV) is
+// written and read by package process/runrecord, which owns its columns.
 type FileResult struct {
-	Input         string         `json:"input"`
-	Output        string         `json:"output"`
-	SampleRate    int            `json:"sample_rate_hz"`
-	Channels      int            `json:"channels"`
-	Frames        int64          `json:"frames"`
-	Format        string         `json:"format"`
-	OutFormat     string         `json:"output_format,omitempty"`
-	DurationS     float64        `json:"duration_s"`
-	ZeroPhase     bool           `json:"zero_phase"`
-	Design        []StageSummary `json:"design,omitempty"`
-	PeakInDBFS    []float64      `json:"peak_in_dbfs,omitempty"`
-	PeakOutDBFS   []float64      `json:"peak_out_dbfs,omitempty"`
-	Clipped       []int64        `json:"clipped_samples,omitempty"`
-	DitherSeed    uint64         `json:"dither_seed,omitempty"`
-	PadFrames     int            `json:"zero_phase_pad_frames,omitempty"`
-	EdgeTransient int            `json:"edge_transient_frames,omitempty"`
-	Warnings      []string       `json:"warnings,omitempty"`
-	NonFinite     []int64        `json:"nonfinite_samples,omitempty"`
-	Seconds       float64        `json:"seconds"`
-	Status        string         `json:"status"`
-	Error         string         `json:"error"`
+	Input         string
+	Output        string
+	SampleRate    int
+	Channels      int
+	Frames        int64
+	Format        string
+	OutFormat     string
+	DurationS     float64
+	ZeroPhase     bool
+	Design        []StageSummary
+	DesignDigest  string // FileJob.DesignDigest of the design and settings used
+	PeakInDBFS    []float64
+	PeakOutDBFS   []float64
+	Clipped       []int64
+	DitherSeed    uint64
+	PadFrames     int
+	EdgeTransient int
+	Warnings      []string
+	// NonFinite counts, per channel, the NaN and infinite input samples
+	// replaced by zero (FileJob.AllowNonFinite); nil when there were none.
+	NonFinite []int64
+	Seconds   float64
+	Status    string
+	Error     string
 	// Err is the error behind Error, for callers that tell cases apart
-	// (*ShortInputError, *FormatError, ...).
-	Err error `json:"-"`
+	// (*ShortInputError, *FormatError, *wavio.NotRegularError, ...).
+	Err error
 }
 
 // Statuses of a FileResult.
@@ -110,6 +118,19 @@ const (
 	StatusSkipped = "skipped"
 	StatusFailed  = "failed"
 )
+
+// DefaultDitherSeed is the dither seed of an input when none is given: a
+// 64-bit FNV-1a hash (a general-purpose hash, chosen for being small and
+// fixed) of the input's file name, without its folder, and its size in
+// bytes. The same file gives the same seed, so identical runs write
+// identical bytes, wherever the file is run from; files that differ in
+// name or size get unrelated dither.
+func DefaultDitherSeed(input string, size int64) uint64 {
+	h := fnv.New64a()
+	io.WriteString(h, filepath.Base(input))
+	fmt.Fprintf(h, "\x00%d", size)
+	return h.Sum64() | 1
+}
 
 // DesignFor designs spec at the sample rate of a file, naming the file
 // in the error.
@@ -204,18 +225,23 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	if err := checkState(len(filt.Sections()), filtered); err != nil {
 		return res, fmt.Errorf("%s: %w", job.Input, err)
 	}
+	res.Warnings = append(res.Warnings, filt.Warnings()...)
 	for _, st := range filt.Stages {
-		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Curve: st.Spec.Curve, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 	}
-	outF := inF
-	if job.Encoding != 0 {
-		outF = inF.WithSample(job.Encoding, job.Bits)
-	}
+	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()
 	if err := outF.Writable(); err != nil {
 		return res, &FormatError{Input: job.Input, Format: outF, Err: err}
 	}
-	w, err := wavio.Create(job.Output, wavio.WriterOptions{Format: outF, Chunks: r.Chunks(), NoDither: job.NoDither, DitherSeed: job.DitherSeed})
+	res.DesignDigest = job.DesignDigest(filt, outF)
+	seed := job.DitherSeed
+	if seed == 0 && !job.NoDither {
+		if st, err := os.Stat(job.Input); err == nil {
+			seed = DefaultDitherSeed(job.Input, st.Size())
+		}
+	}
+	w, err := wavio.Create(job.Output, wavio.WriterOptions{Format: outF, Chunks: r.Chunks(), NoDither: job.NoDither, DitherSeed: seed})
 	if err != nil {
 		return res, fmt.Errorf("%s: writing %s: %w", job.Input, job.Output, err)
 	}
@@ -742,8 +768,10 @@ func describe(f *design.Filter) string {
 	var parts []string
 	for _, st := range f.Stages {
 		s := fmt.Sprintf("%s %s order %d", st.Family, st.Response, st.Order)
-		if st.Family == design.Notch {
+		if st.Form == design.FormNotch {
 			s = fmt.Sprintf("notch x%d from %g Hz", len(st.NotchHz), st.NotchHz[0])
+		} else if st.Weighting != nil {
+			s = fmt.Sprintf("%s (%s), %d poles", st.Weighting.Name(), st.Weighting.Standard, len(st.ZPK.Poles))
 		} else {
 			var e []string
 			for _, hz := range st.EdgesHz {

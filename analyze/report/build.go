@@ -13,8 +13,9 @@ import (
 
 	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/analyze/plots"
+	"github.com/wavsieve/wavsieve/analyze/verify"
 	"github.com/wavsieve/wavsieve/design"
-	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -32,48 +33,58 @@ func (o Options) maxSeconds() float64 {
 	return 120
 }
 
-// applyManifest is an apply manifest as a report reads it: the results
-// of the run, each with the verification document when the run was verified.
-type applyManifest struct {
-	Files []struct {
-		process.FileResult
-		Verify json.RawMessage `json:"verify"`
-	} `json:"files"`
-	Spec json.RawMessage `json:"spec"`
-}
-
 // verifyDoc is the verification document of one file.
 type verifyDoc struct {
 	Pass        bool   `json:"pass"`
+	Verdict     string `json:"verdict"`
 	NotMeasured bool   `json:"not_measured"`
 	Error       string `json:"error"`
 	Checks      []struct {
 		FrequencyHz float64  `json:"frequency_hz"`
 		Kind        string   `json:"kind"`
 		DesignedDB  *float64 `json:"designed_db"`
-		MeasuredDB  *float64 `json:"measured_db"`
-		LimitDB     *float64 `json:"limit_db"`
-		MarginDB    *float64 `json:"margin_db"`
-		Verdict     string   `json:"verdict"`
-		Reason      string   `json:"reason"`
+		// DesignRange is the design across the reading's resolution, the
+		// range the verdict used.
+		DesignRange *verify.Pair `json:"design_range_db"`
+		MeasuredDB  *float64     `json:"measured_db"`
+		LimitDB     *float64     `json:"limit_db"`
+		MarginDB    *float64     `json:"margin_db"`
+		Verdict     string       `json:"verdict"`
+		Reason      string       `json:"reason"`
 	} `json:"checks"`
 }
 
 // FromApply builds the report of an apply run from its JSON manifest.
 // dir is the folder relative paths in the manifest are taken from.
 func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
-	var m applyManifest
+	var m runrecord.Record
 	if err := json.Unmarshal(manifest, &m); err != nil {
+		if errors.Is(err, runrecord.ErrNotRecord) {
+			return Report{}, fmt.Errorf("report: %w", err)
+		}
 		return Report{}, fmt.Errorf("report: the manifest is not valid JSON: %w", err)
 	}
-	if m.Files == nil {
-		return Report{}, errors.New("report: the document has no \"files\": is it a manifest of wavsieve apply?")
-	}
+	return FromRecord(&m, dir, opt)
+}
+
+// FromRecord builds the report of an apply run from its record (read by
+// package runrecord). dir is the folder relative paths in the record are
+// taken from.
+func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 	spec, err := design.ParseSpec(m.Spec)
+	if err != nil && len(m.Files) > 0 && len(m.Files[0].Spec) > 0 {
+		spec, err = design.ParseSpec(m.Files[0].Spec)
+	}
 	if err != nil {
 		return Report{}, fmt.Errorf("report: the manifest's spec: %w", err)
 	}
 	r := Report{Title: "wavsieve filtering report", Subtitle: fmt.Sprintf("%d files; spec: %s", len(m.Files), specSummary(spec))}
+	for _, st := range spec.Stages {
+		if st.Curve != "" {
+			r.Notes = append(r.Notes, "These files are weighted ("+st.Curve+"): a weighted level computed from a file is not a sound level meter's or a vibration meter's reading; the microphone or accelerometer, its calibration and the measuring chain are unknown to wavsieve.")
+			break
+		}
+	}
 	t := Table{
 		Caption: "Run manifest (click a heading to sort)",
 		Columns: []string{"input", "output", "status", "rate (Hz)", "channels", "duration (s)", "peak in (dBFS)", "peak out (dBFS)", "clipped", "verified", "seconds", "error"},
@@ -83,13 +94,21 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 		verdict := ""
 		var vd verifyDoc
 		if len(f.Verify) > 0 && string(f.Verify) != "null" && json.Unmarshal(f.Verify, &vd) == nil {
+			// The three words of verification: pass (every edge measured
+			// and passed), fail, inconclusive. A document without a
+			// verdict (older manifests) is judged from its checks, so that
+			// no pass is shown over unmeasured edges.
 			switch {
+			case vd.Verdict != "":
+				verdict = vd.Verdict
 			case vd.NotMeasured:
-				verdict = "not measured"
-			case vd.Pass:
-				verdict = "pass"
+				verdict = verify.Inconclusive
 			default:
-				verdict = "fail"
+				cs := make([]verify.Check, len(vd.Checks))
+				for i, c := range vd.Checks {
+					cs[i] = verify.Check{Kind: c.Kind, Verdict: c.Verdict}
+				}
+				verdict = verify.RunVerdict(cs)
 			}
 		}
 		t.Rows = append(t.Rows, []string{
@@ -132,7 +151,13 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 		} else {
 			sec.Plots = append(sec.Plots, Plot{Caption: "Welch PSD averaged over channels, input and output, with 95% confidence bands; the lower panel is output minus input. " + note, SVG: svg})
 		}
-		if filt, err := design.Design(spec, float64(f.SampleRate)); err == nil {
+		fileSpec := spec
+		if len(f.Spec) > 0 {
+			if sp, err := design.ParseSpec(f.Spec); err == nil {
+				fileSpec = sp
+			}
+		}
+		if filt, err := design.Design(fileSpec, float64(f.SampleRate)); err == nil {
 			var b bytes.Buffer
 			if err := plots.Design(filt, &b, "svg", plots.DesignOptions{}); err == nil {
 				sec.Plots = append(sec.Plots, Plot{Caption: fmt.Sprintf("The filter as designed at this file's %d Hz rate: magnitude with the spec's forbidden areas, phase, group delay and poles and zeros.", f.SampleRate), SVG: b.Bytes()})
@@ -142,11 +167,11 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 			sec.Facts = append(sec.Facts, [2]string{"verification", vd.Error})
 		}
 		if verdict != "" && len(vd.Checks) > 0 {
-			t := Table{Caption: "Verification (measured transfer magnitude against the design and the spec): " + strings.ToUpper(verdict),
+			t := Table{Caption: "Verification (measured transfer magnitude against the design and the spec): " + verdict,
 				Columns: []string{"frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
 				Numeric: []bool{true, false, true, true, true, true, false, false}}
 			for _, c := range vd.Checks {
-				t.Rows = append(t.Rows, []string{fmtHz(c.FrequencyHz), c.Kind, fmtPtr(c.DesignedDB), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason})
+				t.Rows = append(t.Rows, []string{fmtHz(c.FrequencyHz), c.Kind, designedCell(c.DesignedDB, c.DesignRange), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason})
 				t.RowClass = append(t.RowClass, c.Verdict)
 			}
 			sec.Tables = append(sec.Tables, t)
@@ -355,6 +380,8 @@ func specSummary(s design.Spec) string {
 	var parts []string
 	for _, st := range s.Stages {
 		switch {
+		case st.Curve != "":
+			parts = append(parts, "weighting "+st.Curve)
 		case st.Family == design.Notch:
 			parts = append(parts, fmt.Sprintf("notches at %g Hz and harmonics", st.FundamentalHz))
 		case st.Order > 0:
@@ -405,3 +432,20 @@ func fmtPtr(v *float64) string {
 }
 
 func fmtHz(v float64) string { return strconv.FormatFloat(v, 'g', 7, 64) }
+
+// designedCell is the designed response with the design range the
+// verdict used, when that range is wider than the printed value.
+func designedCell(d *float64, r *verify.Pair) string {
+	v := fmtPtr(d)
+	if r == nil || math.IsInf(r[0], 0) && math.IsInf(r[1], 0) {
+		return v
+	}
+	lo, hi := fmt.Sprintf("%.2f", r[0]), fmt.Sprintf("%.2f", r[1])
+	if math.IsInf(r[0], -1) {
+		lo = "-inf"
+	}
+	if lo == hi {
+		return v
+	}
+	return v + " (" + lo + ".." + hi + ")"
+}

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/csv"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -17,7 +16,9 @@ import (
 	"syscall"
 
 	"github.com/spf13/pflag"
+	"github.com/wavsieve/wavsieve/analyze/verify"
 	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -39,13 +40,27 @@ spill file beside the output (or in --temp-dir), so files larger than memory
 work; the ends are padded for as long as the filter takes to ring down, by
 odd reflection, or for hum notches by the fitted hum itself.
 
-A manifest of the run (JSON and CSV) is written to the output folder, or
-where --manifest says; --json prints the JSON manifest on stdout.
+A record of the run (the manifest, JSON and CSV) is written to the output
+folder, or where --manifest says; --json prints this run's part of it on
+stdout. Runs into one folder add to one record, one row per output; runs
+that share a record wait for each other. Each row holds a digest of the
+design and settings the output was made with: an existing complete output
+is skipped only when its digest matches, and refused otherwise (give
+--replace to redo it).
 
 --shard K/N keeps every N-th input of the sorted list, starting with the
 K-th, so that N machines given the same command share an archive: in a
-Slurm array, --shard $((SLURM_ARRAY_TASK_ID+1))/$SLURM_ARRAY_TASK_COUNT;
-in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N.
+Slurm array of N tasks, --shard $((SLURM_ARRAY_TASK_ID+1))/N (N written
+out, so that resubmitting one task keeps the shares); in a Kubernetes
+indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
+share writes its own record, wavsieve-manifest.K-of-N.json, holding the
+whole input list; 'wavsieve gather DIR' merges them and lists what is
+missing.
+
+--weighting CURVE adds a standard weighting (A, C, Z; Wb ... Wm) after the
+other stages, or alone ('wavsieve help weighting'). A level computed from
+a weighted file is not a sound level meter's reading: the microphone, its
+calibration and the measuring chain are unknown to wavsieve.
 
 Exit codes: 0 every file done or skipped, 1 some failed, 2 usage error.
 
@@ -57,6 +72,9 @@ Examples:
   wavsieve apply --family elliptic --response lowpass --passband 2000 --stopband 2500 \
       --ripple 0.1 --attenuation 80 --zero-phase --sample-format float32 \
       --output out/logger-lp.wav logger.wav
+
+  # A-weight a folder of 48 kHz recordings (each file at its own rate)
+  wavsieve apply --weighting A --output out/a-weighted recordings/
 
   # see what would be designed for each file, writing nothing
   wavsieve apply --spec hum.json --output out --recursive --dry-run archive/
@@ -100,14 +118,14 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.manifest, "manifest", "", "write the manifest to `base`.json and base.csv (default: in the output folder)")
 	fs.StringVar(&o.sampleFmt, "sample-format", "", "output samples: pcm16, pcm24, pcm32, float32 or float64 (default: the input's)")
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
-	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the clock; recorded in the manifest)")
+	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
 	fs.StringVar(&o.channels, "channels", "", "filter only these channels, counted from 1 (`list` such as 1,3); others pass through")
 	fs.BoolVar(&o.steady, "steady-start", false, "causal runs start settled on the first sample, so a DC offset gives no thump")
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")
 	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "replace NaN and infinite float samples by zero (counted per channel in the manifest) instead of refusing the file")
 	fs.BoolVar(&o.allowShort, "allow-short", false, "write what was read of an input that ends before its header's frame count, with a warning, instead of failing it")
 	fs.BoolVar(&o.noProgress, "no-progress", false, "no progress display on a terminal")
-	verifyRuns := fs.Bool("verify", false, "measure every file written against the spec (as wavsieve verify) and record the verdicts in the manifest")
+	verifyRuns := fs.Bool("verify", false, "measure every file written against the spec (as wavsieve verify) and record the verdicts (pass, fail, inconclusive) in the manifest; a failed verification makes the exit code 1")
 	help := fs.BoolP("help", "h", false, "show this help")
 	if err := fs.Parse(args); err != nil {
 		return report(stderr, "apply", usagef("%v", err), "")
@@ -132,6 +150,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	if o.output == "" {
 		return report(stderr, "apply", usagef("no --output folder or file given"), "")
+	}
+	if err := checkApplyOutput(o.output, fs.Args()); err != nil {
+		return report(stderr, "apply", err, "")
 	}
 	popt := process.PlanOptions{Recursive: o.recursive, Replace: o.replace}
 	if o.shard != "" {
@@ -165,10 +186,25 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	} else {
 		popt.OutputDir = o.output
 	}
-	items, err := process.Plan(fs.Args(), popt)
+	found, err := process.Discover(fs.Args(), popt.Recursive)
 	if err != nil {
 		return report(stderr, "apply", err, "")
 	}
+	// The record of the run: given by --manifest, or in the output
+	// folder, one per share when the inputs are shared out.
+	base := o.manifest
+	if base != "" && popt.Shards > 0 {
+		base += fmt.Sprintf(".%d-of-%d", popt.Shard, popt.Shards)
+	}
+	if base == "" {
+		dir := popt.OutputDir
+		if dir == "" {
+			dir = filepath.Dir(popt.OutputFile)
+		}
+		base = runrecord.Base(dir, popt.Shard, popt.Shards)
+	}
+	popt.Job = &tmpl
+
 	// From here on Ctrl-C and SIGTERM stop the run at the next check
 	// (between design stages, between blocks) and the run cleans up; a
 	// second one ends the process at once.
@@ -178,40 +214,103 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		<-ctx.Done()
 		stop()
 	}()
+	// Runs with one record are serialised from planning to the record's
+	// writing, so that the record always describes the files on disk.
+	// undo takes back the folder the lock made when the run stops before
+	// filtering anything.
+	undo := func() {}
+	if !o.dryRun {
+		if _, err := os.Stat(filepath.Dir(base)); err != nil {
+			undo = func() {
+				os.Remove(runrecord.LockPath(base))
+				os.Remove(filepath.Dir(base))
+			}
+		}
+		unlock, err := runrecord.Lock(ctx, base, func() {
+			fmt.Fprintf(stderr, "wavsieve apply: waiting for another run that writes the record %s.json to finish\n", base)
+		})
+		if err != nil {
+			return report(stderr, "apply", fmt.Errorf("cannot take the record's lock: %w", err), "give --manifest a path in a folder you can write")
+		}
+		defer unlock()
+	}
+	rec, err := runrecord.Load(base)
+	if err != nil {
+		undo()
+		return report(stderr, "apply", err, "")
+	}
+	// A share also trusts the record that gather made of earlier shares.
+	var gathered *runrecord.Record
+	if popt.Shards > 0 && o.manifest == "" {
+		gathered, _ = runrecord.Load(runrecord.Base(popt.OutputDir, 0, 0))
+	}
+	popt.Recorded = func(out string) string {
+		if f, ok := rec.Lookup(out); ok && f.Status == runrecord.StatusDone {
+			return f.DesignDigest
+		}
+		if gathered != nil {
+			if f, ok := gathered.Lookup(out); ok && f.Status == runrecord.StatusDone {
+				return f.DesignDigest
+			}
+		}
+		return ""
+	}
+	items, err := process.PlanInputs(found, popt)
+	if err != nil {
+		undo()
+		return report(stderr, "apply", err, "")
+	}
 	if o.dryRun {
 		return dryRun(ctx, items, tmpl, o.asJSON, stdout, stderr)
 	}
 	holdMemory()
-	base := o.manifest
-	if base == "" {
-		dir := popt.OutputDir
-		if dir == "" {
-			dir = filepath.Dir(popt.OutputFile)
-		}
-		base = filepath.Join(dir, "wavsieve-manifest")
-	}
 	removeStale(items, []string{o.tempDir, filepath.Dir(base)}, stderr)
-	var inline *inlineVerify
+
+	var inline *verify.Observer
 	if *verifyRuns {
-		inline = &inlineVerify{sessions: map[string]inlineSession{}, only: tmpl.Only}
-		tmpl.Observe = inline.observe
+		inline = verify.NewObserver(verify.Options{Channels: tmpl.Only})
+		tmpl.Observe = inline.Observe
 	}
 	prog := newProgress(stderr, items, !o.noProgress)
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
 
-	var verified []*verifyReport
+	var verified []*verify.Result
+	verdict := ""
 	if inline != nil && ctx.Err() == nil {
-		verified = inline.reports(results, stderr)
+		verified, verdict = inlineReports(inline, results, stderr)
 	}
-	m := manifest{Files: manifestFiles(results, verified), Spec: spec, Workers: o.workers, Shard: o.shard}
-	if err := m.write(base); err != nil {
-		fmt.Fprintf(stderr, "wavsieve apply: writing the manifest: %v\n", err)
+	rows := recordRows(results, spec, verified)
+	// What --json prints: this run's rows, a skipped file with what the
+	// record holds of it.
+	for i, r := range rows {
+		if f, ok := rec.Lookup(r.Output); ok && r.Status == runrecord.StatusSkipped {
+			f.Status, f.Error = r.Status, r.Error
+			rows[i] = f
+		}
+	}
+	rec.Merge(rows)
+	rec.Spec, _ = json.Marshal(spec)
+	rec.Workers = o.workers
+	rec.Command = append([]string{programName(), "apply"}, args...)
+	rec.WorkingDir, _ = os.Getwd()
+	if popt.Shards > 0 {
+		rec.Share = &runrecord.Share{Index: popt.Shard, Count: popt.Shards}
+		rec.Inputs = make([]string, len(found))
+		for i, f := range found {
+			rec.Inputs[i] = f.Path
+		}
+	}
+	werr := rec.Write(base)
+	if werr != nil {
+		fmt.Fprintf(stderr, "wavsieve apply: writing the record: %v\n", werr)
 	}
 	if o.asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		enc.Encode(m)
+		run := *rec
+		run.Files = rows
+		if j, err := run.JSON(); err == nil {
+			stdout.Write(j)
+		}
 	}
 	failed, done, skipped := 0, 0, 0
 	for _, r := range results {
@@ -234,12 +333,22 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			skipped++
 		}
 	}
-	fmt.Fprintf(stderr, "wavsieve apply: %d done, %d skipped, %d failed; manifest %s.json\n", done, skipped, failed, base)
+	where := "manifest " + base + ".json"
+	if werr != nil {
+		where = "the manifest was NOT written"
+	}
+	fmt.Fprintf(stderr, "wavsieve apply: %d done, %d skipped, %d failed; %s\n", done, skipped, failed, where)
+	if verdict != "" {
+		fmt.Fprintf(stderr, "wavsieve apply: verification: %s\n", verdict)
+	}
 	if ctx.Err() != nil {
 		fmt.Fprintln(stderr, "wavsieve apply: interrupted; no partial outputs were left")
 		return exitFail
 	}
-	if failed > 0 || !verifiedPass(verified) {
+	if werr != nil {
+		return exitFail
+	}
+	if failed > 0 || verdict == verify.Fail {
 		return exitFail
 	}
 	return exitOK
@@ -295,6 +404,36 @@ func parseChannels(s string) ([]int, error) {
 	return out, nil
 }
 
+// checkApplyOutput refuses an --output that cannot be what the inputs
+// need: standard output, a .wav name for several inputs (which would
+// become a folder of that name), or an existing file where a folder is
+// needed.
+func checkApplyOutput(out string, inputs []string) error {
+	if out == "-" {
+		return usagef("--output -: apply writes WAV files, not standard output; give an output folder, or a .wav file name for one input")
+	}
+	if isDir(out) {
+		return nil
+	}
+	oneFile := len(inputs) == 1 && isWAVFile(inputs[0]) && !strings.ContainsAny(inputs[0], "*?[")
+	if !oneFile && isWAVName(out) {
+		return usagef("--output %s names a file, but these inputs need an output folder (a file name takes exactly one input file); give a folder, for example --output %s", out, strings.TrimSuffix(out, filepath.Ext(out)))
+	}
+	if st, err := os.Stat(out); err == nil && !st.IsDir() && !oneFile {
+		return usagef("--output %s is an existing file, but these inputs need an output folder; give a folder", out)
+	}
+	return nil
+}
+
+// isWAVName says whether a path's extension is one apply reads and writes.
+func isWAVName(p string) bool {
+	switch strings.ToLower(filepath.Ext(p)) {
+	case ".wav", ".bwf", ".rf64":
+		return true
+	}
+	return false
+}
+
 func isDir(p string) bool {
 	st, err := os.Stat(p)
 	return err == nil && st.IsDir()
@@ -315,32 +454,37 @@ func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, asJ
 		if it.Skip != "" {
 			r.Error = it.Skip
 		}
-		rd, err := wavio.Open(it.Input, nil)
-		if err != nil {
+		if it.Refuse != "" {
+			r.Error = it.Refuse
+		}
+		if err := it.Source.Err; err != nil {
 			r.Status, r.Error = process.StatusFailed, fmt.Sprintf("%s: %v", it.Input, err)
 			failed++
 			files = append(files, r)
 			continue
 		}
-		f := rd.Format()
-		r.SampleRate, r.Channels, r.Frames, r.Format = f.SampleRate, f.Channels, rd.Frames(), f.String()
+		f := it.Source.Format
+		r.SampleRate, r.Channels, r.Frames, r.Format = f.SampleRate, f.Channels, it.Source.Frames, f.String()
 		r.DurationS = float64(r.Frames) / float64(f.SampleRate)
-		rd.Close()
 		filt, err := process.DesignContext(ctx, tmpl.Spec, f.SampleRate, it.Input)
 		if err != nil {
 			r.Status, r.Error = process.StatusFailed, err.Error()
 			failed++
 		} else {
 			for _, st := range filt.Stages {
-				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Curve: st.Spec.Curve, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 			}
 		}
 		files = append(files, r)
 	}
 	if asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		enc.Encode(manifest{Files: manifestFiles(files, nil), Spec: tmpl.Spec, DryRun: true})
+		rec := runrecord.New()
+		rec.Spec, _ = json.Marshal(tmpl.Spec)
+		rec.DryRun = true
+		rec.Files = recordRows(files, tmpl.Spec, nil)
+		if j, err := rec.JSON(); err == nil {
+			stdout.Write(j)
+		}
 	} else {
 		for _, r := range files {
 			fmt.Fprintf(stdout, "%s -> %s\n", r.Input, r.Output)
@@ -372,6 +516,9 @@ func stageLine(s process.StageSummary) string {
 	if s.Response != "" {
 		what += " " + s.Response
 	}
+	if s.Curve != "" {
+		what += " " + s.Curve
+	}
 	var e []string
 	for _, hz := range s.EdgesHz {
 		e = append(e, fmtHz(hz))
@@ -381,61 +528,6 @@ func stageLine(s process.StageSummary) string {
 		edges = strings.Join(e[:6], ", ") + fmt.Sprintf(", ... (%d)", len(e))
 	}
 	return fmt.Sprintf("%s, order %d, %d sections, at %s Hz", what, s.Order, s.Sections, edges)
-}
-
-// manifest is the record of a run.
-type manifest struct {
-	Files   []manifestFile `json:"files"`
-	Spec    any            `json:"spec"`
-	Workers int            `json:"workers,omitempty"`
-	Shard   string         `json:"shard,omitempty"`
-	DryRun  bool           `json:"dry_run,omitempty"`
-}
-
-var csvHeader = []string{"input", "output", "status", "error", "sample_rate_hz", "channels", "frames", "duration_s", "format", "output_format", "zero_phase", "design", "peak_in_dbfs", "peak_out_dbfs", "clipped_samples", "dither_seed", "seconds"}
-
-// write saves the manifest as base.json and base.csv, each atomically.
-func (m manifest) write(base string) error {
-	j, err := json.MarshalIndent(m, "", " ")
-	if err != nil {
-		return err
-	}
-	if err := writeFileAtomic(base+".json", append(j, '\n')); err != nil {
-		return err
-	}
-	var b strings.Builder
-	w := csv.NewWriter(&b)
-	w.Write(csvHeader)
-	for _, r := range m.Files {
-		var d []string
-		for _, s := range r.Design {
-			d = append(d, stageLine(s))
-		}
-		w.Write([]string{
-			r.Input, r.Output, r.Status, r.Error, strconv.Itoa(r.SampleRate), strconv.Itoa(r.Channels),
-			strconv.FormatInt(r.Frames, 10), fmt.Sprintf("%.6f", r.DurationS), r.Format, r.OutFormat,
-			strconv.FormatBool(r.ZeroPhase), strings.Join(d, "; "), joinFloats(r.PeakInDBFS), joinFloats(r.PeakOutDBFS),
-			joinInts(r.Clipped), strconv.FormatUint(r.DitherSeed, 10), fmt.Sprintf("%.3f", r.Seconds),
-		})
-	}
-	w.Flush()
-	return writeFileAtomic(base+".csv", []byte(b.String()))
-}
-
-func joinFloats(v []float64) string {
-	s := make([]string, len(v))
-	for i, x := range v {
-		s[i] = strconv.FormatFloat(x, 'f', 2, 64)
-	}
-	return strings.Join(s, " ")
-}
-
-func joinInts(v []int64) string {
-	s := make([]string, len(v))
-	for i, x := range v {
-		s[i] = strconv.FormatInt(x, 10)
-	}
-	return strings.Join(s, " ")
 }
 
 func openWAV(name string) (*wavio.Reader, error) { return wavio.Open(name, nil) }
@@ -485,4 +577,14 @@ func holdMemory() {
 	if os.Getenv("GOMEMLIMIT") == "" {
 		debug.SetMemoryLimit(process.MemoryBudget / 2)
 	}
+}
+
+// programName is how the record names this program in the commands it
+// keeps: the path it was started by when that is a wavsieve, so that a
+// resubmitted task finds the same program.
+func programName() string {
+	if len(os.Args) > 0 && strings.TrimSuffix(filepath.Base(os.Args[0]), ".exe") == "wavsieve" {
+		return os.Args[0]
+	}
+	return "wavsieve"
 }

@@ -11,6 +11,8 @@ import (
 	"io"
 	"os"
 	"strings"
+
+	"github.com/wavsieve/wavsieve/process/buildinfo"
 )
 
 func main() {
@@ -38,6 +40,8 @@ func commands() []command {
 		{"verify", "measure a filtering run and check it against the spec", runVerify},
 		{"survey", "measure mains hum, drift, rumble and clipping, and suggest a filter", runSurvey},
 		{"report", "make a self-contained HTML report of an apply run or a survey", runReport},
+		{"gather", "merge the records of the shares of a run and list what is missing", runGather},
+		{"bands", "measure octave and fractional-octave band levels of WAV files", runBands},
 	}
 }
 
@@ -50,9 +54,12 @@ Usage:
 
 Commands:
 %s
-Run 'wavsieve <command> --help' for a command's flags and examples.
+Run 'wavsieve <command> --help' for a command's flags and examples, and
+'wavsieve help <topic>' for the spec-file keys (spec), the JSON documents
+(json), the exit codes (exit-codes) and the standard weightings
+(weighting). 'wavsieve --version' prints the version.
 
-Exit codes: 0 done, 1 failed, 2 usage error.
+Exit codes: 0 done, 1 failed, 2 usage error, 3 verify inconclusive (see 'wavsieve help exit-codes').
 `
 
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
@@ -61,8 +68,13 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return exitUsage
 	}
 	switch args[0] {
-	case "-h", "--help", "help":
+	case "-h", "--help":
 		fmt.Fprintf(stdout, topUsage, commandList())
+		return exitOK
+	case "help":
+		return runHelp(args[1:], stdin, stdout, stderr)
+	case "--version", "version":
+		fmt.Fprintf(stdout, "wavsieve %s\n", buildinfo.Version())
 		return exitOK
 	}
 	for _, c := range commands() {

@@ -6,8 +6,6 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
-	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -165,9 +163,7 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "survey", err, "")
 		}
 	} else {
@@ -184,14 +180,13 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	return exitOK
 }
 
-// expandInputs lists the WAV files an argument names, with the batch
-// planner that apply uses, so that both commands take the same files,
-// folders and patterns. The planner also plans outputs; they are given
-// a folder under the null device, which can hold no input, and ignored.
+// expandInputs lists the WAV files an argument names, with the input
+// discovery that apply uses, so that both commands take the same files,
+// folders and patterns.
 func expandInputs(arg string, recursive bool) ([]string, error) {
-	items, err := process.Plan([]string{arg}, process.PlanOptions{OutputDir: filepath.Join(os.DevNull, "survey"), Recursive: recursive})
+	items, err := process.Discover([]string{arg}, recursive)
 	if errors.Is(err, fs.ErrNotExist) {
-		return nil, fmt.Errorf("%s: no such file or folder; check the path", arg)
+		return nil, wavio.PathError(arg, err)
 	}
 	if err != nil {
 		msg := strings.TrimPrefix(err.Error(), "process: ")
@@ -202,7 +197,7 @@ func expandInputs(arg string, recursive bool) ([]string, error) {
 	}
 	var out []string
 	for _, it := range items {
-		out = append(out, it.Input)
+		out = append(out, it.Path)
 	}
 	return out, nil
 }
@@ -316,6 +311,9 @@ func printSurvey(w io.Writer, f surveyFile) {
 	}
 	for _, r := range f.Rumble {
 		fmt.Fprintf(w, "  rumble, channel %d: %.1f dBFS below %.0f Hz, %.1f dB over the 200-2000 Hz floor", r.Channel, r.LevelDB, r.BelowHz, r.ExcessDB)
+		if r.ToneHz > 0 {
+			fmt.Fprintf(w, "; a steady %.1f Hz tone at %.1f dBFS", r.ToneHz, r.ToneDBFS)
+		}
 		if r.Present {
 			fmt.Fprintf(w, "; high-pass at %g Hz", r.CornerHz)
 		}

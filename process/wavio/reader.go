@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"strings"
 )
 
@@ -98,6 +99,9 @@ type Reader struct {
 // no writer cannot stall the caller.
 func Open(name string, opts *ReaderOptions) (*Reader, error) {
 	f, err := OpenRegular(name)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil, &NotFoundError{Path: name}
+	}
 	if err != nil {
 		return nil, err
 	}
