@@ -206,6 +206,11 @@ wavsieve design --json
                "zeros": [[re, im], ...], "poles": [[re, im], ...], "gain",
                "sections": [[b0, b1, b2, a0, a1, a2], ...],
                "design_edges_hz", "notch_hz",
+               "weighting": {"curve", "standard", "method",
+                 "max_deviation_from_analog_db", "max_deviation_from_table_db",
+                 "class", "class1_up_to_hz", "caution", ...} (weighting only),
+               "mask": [{"nominal", "frequency_hz", "table_db", "lower_db",
+                 "upper_db", "designed_db", "within", "source"}] (A, C, Z),
                "checks": [{"frequency_hz", "kind", "designed_db", "limit_db",
                            "margin_db", "exact"}],
                "spec": {the stage as given}}],
@@ -282,14 +287,19 @@ wavsieve verify --json
 
 const exitHelp = `Exit codes
 
-  0  done: every file was done or skipped (apply), surveyed (survey),
-     every check passed or could not be measured (verify)
+  0  done: every file was done or skipped (apply), surveyed (survey);
+     (verify) pass: every edge, cutoff, notch and mask check was measured
+     and passed
   1  failed: a file could not be read, designed or written, a spec is
-     invalid, or (verify) a check failed; in a batch the other files are
-     still done, and the summary and the manifest say which failed
+     invalid, or (verify, apply --verify) a check failed; in a batch the
+     other files are still done, and the summary and the manifest say which
+     failed
   2  usage error: an unknown command or flag, a missing argument, or a flag
      value that cannot work (such as --cutoff at or above the Nyquist
      frequency of --rate); nothing was done
+  3  (verify) inconclusive: no check failed, but some edge, cutoff, notch or
+     mask check could not be measured (each says why); apply --verify
+     prints "inconclusive" and exits 0
 
 Messages go to stderr and data to stdout, so a script can test the code
 and still read the data.
