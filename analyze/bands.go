@@ -198,6 +198,13 @@ func (f *sosState) run(x []float64) {
 	}
 }
 
+// aboveNyquist is a band range reaching past the Nyquist frequency; it
+// is design.ErrAboveNyquist for errors.Is.
+type aboveNyquist string
+
+func (e aboveNyquist) Error() string        { return string(e) }
+func (e aboveNyquist) Is(target error) bool { return target == design.ErrAboveNyquist }
+
 // ErrNoBands is returned by NewBandBank when no band lies in the range.
 var ErrNoBands = errors.New("analyze: no band lies in the requested range at this sample rate")
 
@@ -236,6 +243,9 @@ func NewBandBank(o BankOptions) (*BandBank, error) {
 	if defaultTo {
 		to = o.SampleRate / 2
 	}
+	if defaultTo && from > to {
+		return nil, ErrNoBands
+	}
 	if !(from > 0) || !(to >= from) {
 		return nil, fmt.Errorf("analyze: invalid band range %g Hz to %g Hz", from, to)
 	}
@@ -245,7 +255,7 @@ func NewBandBank(o BankOptions) (*BandBank, error) {
 			continue
 		}
 		if !(bd.UpperHz < o.SampleRate/2) {
-			return nil, fmt.Errorf("analyze: the 1/%d-octave band %s Hz reaches %.6g Hz, above the Nyquist frequency %g Hz; lower the upper end of the range: %w", o.Fraction, bd.Label, bd.UpperHz, o.SampleRate/2, design.ErrAboveNyquist)
+			return nil, aboveNyquist(fmt.Sprintf("analyze: the 1/%d-octave band %s Hz reaches %.6g Hz, above the Nyquist frequency %g Hz; lower the upper end of the range", o.Fraction, bd.Label, bd.UpperHz, o.SampleRate/2))
 		}
 		bands = append(bands, bd)
 	}

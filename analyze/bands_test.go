@@ -1,6 +1,7 @@
 package analyze
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -263,8 +264,11 @@ func TestBankDefaultRange(t *testing.T) {
 	if _, err := NewBandBank(BankOptions{SampleRate: 48000, Channels: 1, Fraction: 3, FromHz: 25, ToHz: 20000}); err != nil {
 		t.Errorf("25 Hz..20 kHz at 48 kHz: %v", err)
 	}
-	if _, err := NewBandBank(BankOptions{SampleRate: 44100, Channels: 1, Fraction: 3, ToHz: 20000}); err == nil {
-		t.Errorf("20 kHz third at 44.1 kHz accepted")
+	if _, err := NewBandBank(BankOptions{SampleRate: 44100, Channels: 1, Fraction: 3, ToHz: 20000}); !errors.Is(err, design.ErrAboveNyquist) {
+		t.Errorf("20 kHz third at 44.1 kHz: %v, want ErrAboveNyquist", err)
+	}
+	if _, err := NewBandBank(BankOptions{SampleRate: 8000, Channels: 1, Fraction: 1, FromHz: 5000}); !errors.Is(err, ErrNoBands) {
+		t.Errorf("octaves from 5 kHz at 8 kHz: %v, want ErrNoBands", err)
 	}
 }
 

@@ -361,7 +361,7 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 			if errors.Is(err, analyze.ErrNoBands) {
 				bf.Error = fmt.Sprintf("%s: no 1/%d-octave band lies between --from and --to below the Nyquist frequency of this %d Hz file; widen the range", path, opt.fraction, f.SampleRate)
 			} else {
-				bf.Error = fmt.Sprintf("%s: %v", path, strings.TrimPrefix(err.Error(), "design: "))
+				bf.Error = fmt.Sprintf("%s: %v", path, strings.TrimPrefix(strings.TrimPrefix(err.Error(), "analyze: "), "design: "))
 			}
 			return bf
 		}
@@ -394,6 +394,9 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 	for i, b := range bands {
 		bf.labels = append(bf.labels, b.Label)
 		bf.Filters = append(bf.Filters, bandFilter{MidbandHz: b.NominalHz, Order: bank.Filters()[i].Order, RateHz: rates[i]})
+	}
+	if whole.Frames == 0 {
+		bf.Warnings = append(bf.Warnings, "the file holds no samples: no level to give")
 	}
 	bf.Frames = whole.Frames
 	bf.DurationS = float64(whole.Frames) / bf.SampleRate
