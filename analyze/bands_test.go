@@ -133,11 +133,14 @@ func TestBankPinkNoiseEqualPerOctave(t *testing.T) {
 
 // TestBankEnergy: on white noise the band powers add up to the power of
 // the noise between the lowest band's lower edge and the highest band's
-// upper edge (Parseval; adjacent Butterworth bands cross at -3 dB, so
-// their squared responses add up to about 1 across the overlap).
+// upper edge (Parseval), plus what the bands' skirts overlap: adjacent
+// Butterworth bands cross at -3 dB, and the noise bandwidth of an order-N
+// Butterworth is (pi/2N) / sin(pi/2N) of its -3 dB width (1.047 for N = 3,
+// +0.20 dB), so the sum may exceed the power between the edges by about
+// that much and never fall short of it.
 func TestBankEnergy(t *testing.T) {
 	const rate = 48000
-	const tolDB = 0.2 // the squared responses' sum ripples across the overlaps and skirts past the ends
+	const lowDB, highDB = -0.02, 0.25 // the statistical error of 22 s of noise is below 0.02 dB
 	x := bankNoise(1<<20, 3)
 	for _, fr := range []int{1, 3} {
 		lv, b := bankLevels(t, BankOptions{SampleRate: rate, Channels: 1, Fraction: fr, FromHz: 100, ToHz: 8000}, x)
@@ -149,7 +152,9 @@ func TestBankEnergy(t *testing.T) {
 		// White noise: the power between f1 and f2 is the total times
 		// (f2 - f1) / (rate / 2).
 		want := lv.Overall[0] * (bands[len(bands)-1].UpperHz - bands[0].LowerHz) / (rate / 2)
-		if d := msDB(sum) - msDB(want); math.Abs(d) > tolDB {
+		d := msDB(sum) - msDB(want)
+		t.Logf("1/%d: band powers %.4f dB, noise between the edges %.4f dB", fr, msDB(sum), msDB(want))
+		if d < lowDB || d > highDB {
 			t.Errorf("1/%d: band powers add up to %.3f dB, the noise between the edges is %.3f dB", fr, msDB(sum), msDB(want))
 		}
 	}
