@@ -117,7 +117,7 @@ func TestBankPinkNoiseEqualPerOctave(t *testing.T) {
 	const rate = 48000
 	// spreadDB allows the band shapes' small differences near Nyquist
 	// (bilinear warping) and the start-up of the lowest band.
-	const spreadDB = 0.15
+	const spreadDB = 0.05 // measured spread: 0.025 dB (31.5 Hz to 8 kHz at 48 kHz)
 	x := pinkNoise(1<<20, rate, 5, 7)
 	lv, b := bankLevels(t, BankOptions{SampleRate: rate, Channels: 1, Fraction: 1, FromHz: 31.5}, x)
 	lo, hi := math.Inf(1), math.Inf(-1)

@@ -46,7 +46,10 @@ inside the class 1 mask of IEC 61260-1:2014 (Table 1). The lower bands
 run on the signal decimated by octaves, behind an anti-alias low-pass.
 
 With --interval SECONDS the levels are also given over consecutive
-stretches of that length, as rows (the last may be shorter).
+stretches of that length, as rows (the last may be shorter). The band
+filters delay and smear what they pass (the 25 Hz third by about a tenth
+of a second), so a short event shows in the low bands a little later than
+in the high ones.
 
 Units: by default levels are in dB re full scale, where a full-scale sine
 reads -3.01 dB. A calibration turns them into physical levels, re the
