@@ -610,3 +610,20 @@ func printBandStage(w io.Writer, f *design.Filter, i int, st design.Designed) {
 	}
 	fmt.Fprintf(w, "  mask: %s; points above the Nyquist frequency are left out\n", st.Mask[0].Source)
 }
+
+// maskRows gives the JSON rows of a stage's tolerance mask (a band
+// stage's class 1 mask) with the designed response at each; nil when the
+// stage has none.
+func maskRows(f *design.Filter, st design.Designed) []maskJSON {
+	one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
+	var rows []maskJSON
+	for _, m := range st.Mask {
+		v := one.MagnitudeDB(m.FrequencyHz)
+		rows = append(rows, maskJSON{
+			Label: m.Label, FrequencyHz: m.FrequencyHz, TargetDB: finitePtr(m.TargetDB),
+			LowerDB: finitePtr(m.LowerDB), UpperDB: finitePtr(m.UpperDB),
+			DesignedDB: v, Within: m.Within(v), Source: m.Source,
+		})
+	}
+	return rows
+}
