@@ -79,7 +79,8 @@ of each file's levels there (PNG, or SVG with --plot-format svg).
 ` + bandsCaution + `
 
 Inputs are never modified. A file that cannot be read is reported and the
-others go on. Exit codes: 0 every file measured, 1 some failed, 2 usage
+others go on. Exit codes: 0 every file measured (and charted), 1 some file
+failed or its chart could not be written, 2 usage
 error.
 
 Examples:
@@ -146,7 +147,8 @@ type bandsFile struct {
 	Warnings   []string        `json:"warnings,omitempty"`
 	Error      string          `json:"error,omitempty"`
 
-	labels []string // nominal labels of the bands, for the table
+	labels  []string // nominal labels of the bands, for the table
+	plotErr bool     // the bar chart asked for could not be written
 }
 
 type bandsDoc struct {
@@ -245,8 +247,10 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	failed := 0
 	for _, f := range doc.Files {
-		if f.Error != "" {
+		if f.Error != "" || f.plotErr {
 			failed++
+		}
+		if f.Error != "" {
 			fmt.Fprintf(stderr, "wavsieve bands: %s\n", f.Error)
 		}
 		for _, w := range f.Warnings {
@@ -424,6 +428,7 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 		name, err := writeBandsPlot(bf, bands, opt)
 		if err != nil {
 			bf.Warnings = append(bf.Warnings, fmt.Sprintf("bar chart not written: %v", err))
+			bf.plotErr = true
 		} else {
 			bf.Plot = name
 		}
