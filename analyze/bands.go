@@ -181,8 +181,8 @@ func (e aboveNyquist) Is(target error) bool { return target == design.ErrAboveNy
 // ErrNoBands is returned by NewBandBank when no band lies in the range.
 var ErrNoBands = errors.New("analyze: no band lies in the requested range at this sample rate")
 
-// bankLowpass is the anti-alias filter of the decimation by 2, as a
-// spec relative to the rate (design.Design works in Hz: it is scaled).
+// bankLowpass is the anti-alias filter of the decimation by 2 from rate:
+// its edges are the same fractions of every rate it is designed at.
 func bankLowpass(rate float64) (*design.Filter, error) {
 	return design.Design(design.Spec{Stages: []design.Stage{{
 		Family: design.Elliptic, Response: design.Lowpass,
