@@ -174,13 +174,10 @@ Stage keys (units in brackets):
   q               [ratio] notch only: constant quality factor instead of
                   bandwidth_hz (width = centre / q), e.g. 30
   odd_harmonics_only  true or false, notch only: notch harmonics 1, 3, 5...
-<<<<<<< HEAD
-  fraction        [b] band only: the bands are 1/b octave: 1, 2, 3, 6, 12 or 24
-  midband_hz      [Hz] band only: nominal or exact IEC 61260-1 mid-band
-                  frequency of the band, e.g. 1000, 31.5 or 12500
-=======
   curve           weighting only: A, C, Z, Wb, Wc, Wd, We, Wf, Wh, Wj, Wk or Wm
->>>>>>> main
+  fraction        [count] band only: b of a 1/b-octave band, 1, 2, 3, 6, 12 or 24
+  midband_hz      [Hz] band only: the band's nominal or exact mid-band
+                  frequency, e.g. 1000 or 31.5
 
 A frequency is a number, or an array of one or two numbers. Every edge must
 lie below the Nyquist frequency (half the sample rate) of each file the spec
@@ -234,6 +231,11 @@ wavsieve apply --json (and the run record wavsieve-manifest.json)
   The same rows are written as wavsieve-manifest.csv; runs into one
   folder add to one record, keyed by output.
 
+wavsieve gather --json
+  {"version", "files": [the merged record's rows, as apply's],
+   "missing": [inputs no share did], "failed", "shares", "resubmit",
+   "done_twice", "record": the merged record's file}
+
 wavsieve spectrum --json
   {"version", "file", "sample_rate_hz", "window", "segment", "overlap",
    "scaling": "density" | "spectrum", "units", "detrend", "average",
@@ -258,6 +260,19 @@ wavsieve survey --json
                           "present", "suggested_highpass_hz"}],
               "suggested_spec": {a spec} | null, "notes", "warnings",
               "error"}]}
+
+wavsieve bands --json
+  {"version", "caution",
+   "files": [{"path", "sample_rate_hz", "fraction", "frames", "duration_s",
+              "reference", "weighting",
+              "channels": [{"channel", "overall_db", "samples_at_full_scale",
+                            "bands": [{"midband_hz", "exact_midband_hz",
+                                       "level_db"}]}],
+              "intervals": [{"start_s", "end_s", "channels": [as above]}],
+              "filters": [{"midband_hz", "order", "rate_hz"}], "plot",
+              "warnings", "error"}]}
+  midband_hz is the nominal mid-band frequency, level_db null for a band
+  with no energy at all; levels are in dB re "reference".
 
 wavsieve verify --json
   {"version", "pass", "verdict": "pass" | "fail" | "inconclusive", "note",
