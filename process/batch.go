@@ -166,6 +166,10 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 	if opt.Shards < 0 || opt.Shards > 0 && (opt.Shard < 1 || opt.Shard > opt.Shards) {
 		return nil, fmt.Errorf("process: invalid shard %d of %d: it must be from 1 to the number of shards", opt.Shard, opt.Shards)
 	}
+	found = outsideOutput(found, opt.OutputDir)
+	if len(found) == 0 {
+		return nil, fmt.Errorf("process: no WAV files found in the inputs outside the output folder")
+	}
 	if opt.OutputFile != "" && len(found) != 1 {
 		return nil, fmt.Errorf("process: an output file takes exactly one input, got %d; give an output folder instead", len(found))
 	}
@@ -222,6 +226,28 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 	return items, nil
 }
 
+// outsideOutput leaves out the inputs found inside the output folder (an
+// output folder inside a folder input, walked with -r): they are this
+// program's outputs, not inputs.
+func outsideOutput(found []Input, outDir string) []Input {
+	if outDir == "" {
+		return found
+	}
+	od, err := filepath.Abs(outDir)
+	if err != nil {
+		return found
+	}
+	var keep []Input
+	for _, f := range found {
+		a, err := filepath.Abs(f.Path)
+		if err == nil && f.Rel != filepath.Base(f.Path) && strings.HasPrefix(a, od+string(filepath.Separator)) {
+			continue
+		}
+		keep = append(keep, f)
+	}
+	return keep
+}
+
 // skipOrRefuse decides about a complete existing output.
 func skipOrRefuse(f Input, out string, opt PlanOptions) (skip, refuse string) {
 	var rec string
@@ -269,8 +295,11 @@ func isWAVName(n string) bool {
 // frames, channels and the same rate as the input. Outputs are only ever
 // renamed into place once finished, so a readable one with the right
 // length is complete.
+//
+// Only a regular file counts: a symbolic link there (even to a WAV file
+// of the right shape) or a FIFO is not an output of this program.
 func completeOutput(in Input, out string) bool {
-	if st, err := os.Stat(out); err != nil || !st.Mode().IsRegular() {
+	if st, err := os.Lstat(out); err != nil || !st.Mode().IsRegular() {
 		return false
 	}
 	o, err := wavio.Open(out, nil)
@@ -300,12 +329,12 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 		workers = 1
 	}
 	res := make([]FileResult, len(items))
-	if tmpl.SpillMemoryBytes == 0 && workers > 1 {
-		// Workers share the in-memory part of their zero-phase spills, so
-		// that peak memory stays under 200 MB whatever the number of
-		// workers; past it the spill goes to its file.
-		step := int64(spillStep) * 8 // bytes
-		tmpl.SpillMemoryBytes = max(step, int64(spillMemory)/int64(workers)/step*step)
+	if tmpl.SpillMemoryBytes == 0 {
+		// Workers share the in-memory part of their zero-phase spills
+		// and its buffers, so that peak memory stays within MemoryBudget
+		// whatever the number of workers; past it the spill goes to its
+		// file.
+		tmpl.SpillMemoryBytes, tmpl.spillIOBytes = spillShare(workers)
 	}
 	next := make(chan int)
 	var wg sync.WaitGroup

@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"context"
 	"encoding/csv"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -257,9 +256,7 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	switch {
 	case *asJSON:
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "bands", err, "")
 		}
 	case *asCSV:

@@ -99,9 +99,7 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		if doc.Resubmit == nil {
 			doc.Resubmit = []runrecord.Resubmit{}
 		}
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "gather", err, "")
 		}
 	}
