@@ -269,6 +269,9 @@ func designDocument(f *design.Filter, source string) designResult {
 			sj.Checks = append(sj.Checks, cj)
 		}
 		sj.Weighting, sj.Mask = weightingDocument(f, st)
+		if sj.Mask == nil {
+			sj.Mask = maskRows(f, st)
+		}
 		res.Stages = append(res.Stages, sj)
 	}
 	lo, hi := f.PassbandGroupDelay()

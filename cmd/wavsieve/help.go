@@ -261,6 +261,19 @@ wavsieve survey --json
               "suggested_spec": {a spec} | null, "notes", "warnings",
               "error"}]}
 
+wavsieve bands --json
+  {"version", "caution",
+   "files": [{"path", "sample_rate_hz", "fraction", "frames", "duration_s",
+              "reference", "weighting",
+              "channels": [{"channel", "overall_db", "samples_at_full_scale",
+                            "bands": [{"midband_hz", "exact_midband_hz",
+                                       "level_db"}]}],
+              "intervals": [{"start_s", "end_s", "channels": [as above]}],
+              "filters": [{"midband_hz", "order", "rate_hz"}], "plot",
+              "warnings", "error"}]}
+  midband_hz is the nominal mid-band frequency, level_db null for a band
+  with no energy at all; levels are in dB re "reference".
+
 wavsieve verify --json
   {"version", "pass", "verdict": "pass" | "fail" | "inconclusive", "note",
    "checks": [{"channel", "stage", "kind", "frequency_hz", "designed_db",
