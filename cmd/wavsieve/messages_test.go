@@ -61,6 +61,8 @@ func TestMessages(t *testing.T) {
 			[]string{"--output -: apply writes WAV files, not standard output"}, nil},
 		{"report into a folder", []string{"report", "--from", "x.json", "--output", folder}, exitUsage,
 			[]string{"is a folder; give the report's file name"}, []string{"file exists"}},
+		{"spec written onto a folder", []string{"survey", "--write-spec", folder, "../../samples/pumphouse-vibration-12800.wav"}, exitFail,
+			[]string{"afolder is a folder; give the name of a file to write"}, []string{"file exists"}},
 		{"negative overlap", []string{"spectrum", "--overlap", "-1", north}, exitUsage,
 			[]string{"--overlap -1: give 0 or more samples"}, nil},
 	}
