@@ -339,7 +339,7 @@ func TestCreateIsAtomic(t *testing.T) {
 	if _, err := os.Stat(name); !errors.Is(err, os.ErrNotExist) {
 		t.Fatal("the final name exists before Close")
 	}
-	if l := list(); len(l) != 1 || !strings.HasPrefix(l[0], ".out.wav.tmp-") {
+	if l := list(); len(l) != 1 || !strings.HasPrefix(l[0], ".out.wav.wavsieve-tmp-") {
 		t.Fatalf("folder during writing: %v", l)
 	}
 	if err := w.Close(); err != nil {
