@@ -112,3 +112,24 @@ func TestSkipNamesReplace(t *testing.T) {
 		t.Errorf("second run: exit %d, stderr:\n%s", code, errs)
 	}
 }
+
+// TestReportToStdout: --output - writes the page on stdout and no file
+// named "-".
+func TestReportToStdout(t *testing.T) {
+	dir := t.TempDir()
+	code, doc, errs := runCmd(t, "survey", "--json", "../../samples/pumphouse-vibration-12800.wav")
+	if code != exitOK {
+		t.Fatalf("survey: exit %d: %s", code, errs)
+	}
+	from := filepath.Join(dir, "survey.json")
+	if err := os.WriteFile(from, []byte(doc), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCmd(t, "report", "--from", from, "--output", "-")
+	if code != exitOK || !strings.HasPrefix(out, "<!DOCTYPE html>") || !strings.Contains(out, "</html>") {
+		t.Fatalf("exit %d, %d bytes on stdout starting %.40q; stderr %s", code, len(out), out, errs)
+	}
+	if _, err := os.Stat("-"); err == nil {
+		t.Error("a file named - was written")
+	}
+}
