@@ -208,7 +208,9 @@ func writeFileAtomic(name string, data []byte) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(name)+".tmp-*")
+	// A locked temporary file that a later run recognises and removes if
+	// this one is killed before the rename.
+	tmp, err := wavio.CreateTemp(dir, filepath.Base(name))
 	if err != nil {
 		return err
 	}
