@@ -2,6 +2,7 @@ package process
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io/fs"
 	"os"
@@ -349,7 +350,7 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 				case it.Skip != "":
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusSkipped, Error: it.Skip}
 				case it.Refuse != "":
-					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Refuse}
+					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Refuse, Err: errors.New(it.Refuse)}
 				case ctx.Err() != nil:
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Input + ": not started: the run was interrupted"}
 				default:
