@@ -12,6 +12,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/wavsieve/wavsieve/process/runrecord"
 )
 
 var hpFlags = []string{"--family", "butterworth", "--response", "highpass", "--order", "2", "--cutoff", "100"}
@@ -234,7 +236,16 @@ func TestApplyInterruptedInDesign(t *testing.T) {
 			if err := cmd.Start(); err != nil {
 				t.Skip(err)
 			}
-			time.Sleep(300 * time.Millisecond)
+			// Once the record's lock is taken, the signal handlers are
+			// set and planning and designing follow.
+			lock := runrecord.LockPath(runrecord.Base(out, 0, 0))
+			for i := 0; i < 3000; i++ {
+				if _, err := os.Stat(lock); err == nil {
+					break
+				}
+				time.Sleep(10 * time.Millisecond)
+			}
+			time.Sleep(100 * time.Millisecond)
 			cmd.Process.Signal(sig)
 			done := make(chan error, 1)
 			go func() { done <- cmd.Wait() }()
