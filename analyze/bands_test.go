@@ -50,7 +50,7 @@ func bankNoise(n int, seed uint64) []float64 {
 // design, so the reading differs only by the start-up of the filters and
 // the passband ripple of the anti-alias low-passes.
 func TestBankTonesAtMidbands(t *testing.T) {
-	const tolDB = 0.1 // issue requirement: within 0.1 dB
+	const tolDB = 0.1 // the band levels' target: a tone reads its RMS level within 0.1 dB
 	const amp = 0.5
 	for _, tc := range []struct {
 		name     string
@@ -167,7 +167,7 @@ func TestBankEnergy(t *testing.T) {
 // the levels: the same noise through the multirate bank and through the
 // same bands all at the file's rate agrees to 0.05 dB in every band.
 func TestBankMultirateMatchesFullRate(t *testing.T) {
-	const tolDB = 0.05 // issue requirement
+	const tolDB = 0.05 // the band levels' target: multirate and full rate agree to 0.05 dB
 	for _, rate := range []float64{44100, 48000} {
 		x := bankNoise(int(rate*20), 11)
 		// Pink-ish weighting keeps the low bands from being starved: add a
@@ -346,7 +346,7 @@ func TestBankResponseInsideMask(t *testing.T) {
 // anti-alias low-passes delay the low bands, so a little more of the
 // signal's end is still inside the filters when the file ends.
 func TestBankAgainstSciPy(t *testing.T) {
-	const tolDB = 0.1 // issue requirement for the comparison with SciPy
+	const tolDB = 0.1 // the band levels' target: the same levels as SciPy to 0.1 dB
 	b, err := os.ReadFile(filepath.Join("..", "testdata", "bands", "scipy_bands_refs.json"))
 	if err != nil {
 		t.Fatal(err)
