@@ -240,7 +240,7 @@ func BandOmega(b int, x float64) float64 {
 // Class1Limits returns the class 1 acceptance limits of IEC 61260-1:2014
 // on the relative response (dB re the response at fm, so the negative of
 // the relative attenuation) of a 1/b-octave filter at frequency f: the
-// response must lie in [lo, hi]; hi is +Inf nowhere and lo is -Inf in
+// response must lie in [lo, hi]; hi is always finite, and lo is -Inf in
 // the stopband (no maximum attenuation there). At the band edges both
 // rows of Table 1 apply: the response must lie in [-5.3, -1.2].
 func Class1Limits(b int, fm, f float64) (lo, hi float64) {
