@@ -401,3 +401,39 @@ func TestBankAgainstSciPy(t *testing.T) {
 	}
 	t.Logf("largest difference from SciPy: %.4f dB", worst)
 }
+
+// TestBankOtherFractions: banks of 1/2, 1/6, 1/12 and 1/24-octave bands
+// build over their default range and read a tone at the exact mid-band of
+// the band at or just above 1 kHz at its RMS level.
+func TestBankOtherFractions(t *testing.T) {
+	const tolDB = 0.1 // the band levels' target for tones at exact mid-bands
+	const rate, amp = 44100.0, 0.3
+	for _, fr := range []int{2, 6, 12, 24} {
+		b, err := NewBandBank(BankOptions{SampleRate: rate, Channels: 1, Fraction: fr})
+		if err != nil {
+			t.Fatalf("1/%d: %v", fr, err)
+		}
+		bd := design.NewBand(fr, 0)
+		x := make([]float64, int(rate*3))
+		for i := range x {
+			x[i] = amp * math.Sin(2*math.Pi*bd.ExactHz*float64(i)/rate)
+		}
+		lv := runBank(b, x)
+		found := false
+		for i, v := range b.Bands() {
+			if v.Index != 0 {
+				continue
+			}
+			found = true
+			if got, want := msDB(lv.Bands[0][i]), msDB(amp*amp/2); math.Abs(got-want) > tolDB {
+				t.Errorf("1/%d band %s: %.3f dB, want %.3f", fr, v.Label, got, want)
+			}
+		}
+		if !found {
+			t.Errorf("1/%d: no band %s in the bank", fr, bd.Label)
+		}
+		if last := b.Bands()[len(b.Bands())-1]; !(last.UpperHz < 0.45*rate) {
+			t.Errorf("1/%d: last band %s reaches %g Hz", fr, last.Label, last.UpperHz)
+		}
+	}
+}
