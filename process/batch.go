@@ -2,6 +2,7 @@ package process
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io/fs"
 	"os"
@@ -64,7 +65,7 @@ type Item struct {
 // Plan expands inputs (files, folders and glob patterns) into items:
 // Discover, then PlanInputs.
 func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
-	found, err := Discover(inputs, opt.Recursive)
+	found, err := Discover(inputs, opt.Recursive, opt.OutputDir)
 	if err != nil {
 		return nil, err
 	}
@@ -74,8 +75,19 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 // Discover expands inputs (files, folders and glob patterns) into the
 // sorted list of input files, reading nothing but folder listings. WAV
 // files are recognised by their .wav, .bwf or .rf64 extension inside
-// folders; a file named explicitly is taken whatever its name.
-func Discover(inputs []string, recursive bool) ([]Input, error) {
+// folders; a file named explicitly is taken whatever its name. The
+// folders in skip (an output folder inside an input folder) are left out
+// of the walk, so that a run's own outputs never become its inputs.
+func Discover(inputs []string, recursive bool, skip ...string) ([]Input, error) {
+	var skipAbs []string
+	for _, d := range skip {
+		if d == "" {
+			continue
+		}
+		if a, err := filepath.Abs(d); err == nil {
+			skipAbs = append(skipAbs, a)
+		}
+	}
 	var found []Input
 	for _, arg := range inputs {
 		matches := []string{arg}
@@ -105,6 +117,14 @@ func Discover(inputs []string, recursive bool) ([]Input, error) {
 				if d.IsDir() {
 					if path != p && !recursive {
 						return filepath.SkipDir
+					}
+					if path != p && len(skipAbs) > 0 {
+						a, _ := filepath.Abs(path)
+						for _, s := range skipAbs {
+							if a == s {
+								return filepath.SkipDir
+							}
+						}
 					}
 					return nil
 				}
@@ -181,14 +201,9 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 		}
 		byOut[oa] = f.Path
 		it := Item{Input: f.Path, Output: out}
-		// Only regular files are opened: opening a pipe would wait for a
-		// writer that may never come.
-		if st, err := os.Stat(f.Path); err != nil {
-			f.Err = err
-		} else if !st.Mode().IsRegular() {
-			f.Err = fmt.Errorf("not a regular file (%s)", st.Mode().Type())
-			it.Refuse = fmt.Sprintf("%s: not a regular file but a %s; give WAV files", f.Path, kindOf(st.Mode()))
-		} else if r, err := wavio.Open(f.Path, nil); err != nil {
+		// wavio.Open refuses what is not a regular file (a FIFO would wait
+		// for a writer) before opening it.
+		if r, err := wavio.Open(f.Path, nil); err != nil {
 			f.Err = err
 		} else {
 			f.Format, f.Frames = r.Format(), r.Frames()
@@ -246,21 +261,6 @@ func skipOrRefuse(f Input, out string, opt PlanOptions) (skip, refuse string) {
 		return "", fmt.Sprintf("%s: the output %s exists but was made with another design or settings; give --replace to redo it", f.Path, out)
 	}
 	return "output exists, complete and made with the same design (give --replace to redo it)", ""
-}
-
-// kindOf names a file type that is not a regular file.
-func kindOf(m fs.FileMode) string {
-	switch {
-	case m&fs.ModeNamedPipe != 0:
-		return "named pipe (FIFO)"
-	case m&fs.ModeDevice != 0:
-		return "device"
-	case m&fs.ModeSocket != 0:
-		return "socket"
-	case m.IsDir():
-		return "folder"
-	}
-	return "special file"
 }
 
 func isWAVName(n string) bool {
@@ -326,7 +326,7 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 				case it.Skip != "":
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusSkipped, Error: it.Skip}
 				case it.Refuse != "":
-					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Refuse}
+					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Refuse, Err: errors.New(it.Refuse)}
 				case ctx.Err() != nil:
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Input + ": not started: the run was interrupted"}
 				default:

@@ -3,17 +3,20 @@
 package process
 
 import (
+	"errors"
 	"os"
 	"path/filepath"
-	"strings"
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
 func TestPlanRefusesAPipe(t *testing.T) {
-	// A FIFO among the inputs is refused without being opened (opening
-	// it would wait for a writer); the other inputs are planned.
+	// Planning reads each header once, but never opens a FIFO among the
+	// inputs (it would wait for a writer): it notes the error, which the
+	// run reports for that file alone.
 	dir := t.TempDir()
 	in := filepath.Join(dir, "in")
 	os.MkdirAll(in, 0o755)
@@ -31,7 +34,8 @@ func TestPlanRefusesAPipe(t *testing.T) {
 	}()
 	select {
 	case items := <-done:
-		if len(items) != 2 || items[0].Refuse != "" || !strings.Contains(items[1].Refuse, "named pipe") {
+		var nr *wavio.NotRegularError
+		if len(items) != 2 || items[0].Source.Err != nil || !errors.As(items[1].Source.Err, &nr) {
 			t.Errorf("%+v", items)
 		}
 	case <-time.After(10 * time.Second):

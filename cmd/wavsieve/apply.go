@@ -17,6 +17,7 @@ import (
 
 	"github.com/spf13/pflag"
 	"github.com/wavsieve/wavsieve/analyze/verify"
+	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
@@ -31,8 +32,8 @@ Inputs are WAV files, folders (with --recursive, their sub-folders too) and
 glob patterns. The outputs mirror the input tree under the --output folder;
 for a single input file --output may name the output file instead. Inputs
 are never modified, outputs are written to a temporary file and renamed into
-place when complete, and an output that already exists complete is skipped
-unless --replace is given. A file whose rate cannot take the spec (an edge
+place when complete, and an output that already exists complete, made with
+the same design, is skipped unless --replace is given. A file whose rate cannot take the spec (an edge
 at or above its Nyquist frequency) fails alone; the others go on.
 
 With --zero-phase the filter runs forward, then backward over a temporary
@@ -52,10 +53,9 @@ is skipped only when its digest matches, and refused otherwise (give
 K-th, so that N machines given the same command share an archive: in a
 Slurm array of N tasks, --shard $((SLURM_ARRAY_TASK_ID+1))/N (N written
 out, so that resubmitting one task keeps the shares); in a Kubernetes
-indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
-share writes its own record, wavsieve-manifest.K-of-N.json, holding the
-whole input list; 'wavsieve gather DIR' merges them and lists what is
-missing.
+indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each share writes
+its own record, wavsieve-manifest.K-of-N.json, holding the whole input
+list; 'wavsieve gather DIR' merges them and lists what is missing.
 
 --weighting CURVE adds a standard weighting (A, C, Z; Wb ... Wm) after the
 other stages, or alone ('wavsieve help weighting'). A level computed from
@@ -115,7 +115,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.shard, "shard", "", "process only share `K/N` of the inputs (see above)")
 	fs.BoolVarP(&o.dryRun, "dry-run", "n", false, "print the design for every file and write nothing")
 	fs.BoolVar(&o.asJSON, "json", false, "print the run manifest as JSON on stdout")
-	fs.StringVar(&o.manifest, "manifest", "", "write the manifest to `base`.json and base.csv (default: in the output folder)")
+	fs.StringVar(&o.manifest, "manifest", "", "write the run record to `base`.json and base.csv, base.K-of-N with --shard (default: wavsieve-manifest in the output folder)")
 	fs.StringVar(&o.sampleFmt, "sample-format", "", "output samples: pcm16, pcm24, pcm32, float32 or float64 (default: the input's)")
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
 	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
@@ -186,7 +186,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	} else {
 		popt.OutputDir = o.output
 	}
-	found, err := process.Discover(fs.Args(), popt.Recursive)
+	found, err := process.Discover(fs.Args(), popt.Recursive, popt.OutputDir)
 	if err != nil {
 		return report(stderr, "apply", err, "")
 	}
@@ -229,7 +229,10 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		unlock, err := runrecord.Lock(ctx, base, func() {
 			fmt.Fprintf(stderr, "wavsieve apply: waiting for another run that writes the record %s.json to finish\n", base)
 		})
-		if err != nil {
+		switch {
+		case errors.Is(err, runrecord.ErrNoLocks):
+			fmt.Fprintf(stderr, "wavsieve apply: warning: %v; runs into this folder at the same time could lose each other's rows of the record\n", err)
+		case err != nil:
 			return report(stderr, "apply", fmt.Errorf("cannot take the record's lock: %w", err), "give --manifest a path in a folder you can write")
 		}
 		defer unlock()
@@ -274,6 +277,19 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	prog := newProgress(stderr, items, !o.noProgress)
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
+	for i, r := range results {
+		// A value given by a flag is named by its flag, not its spec key:
+		// a file that failed at its rate is designed again (it takes
+		// microseconds) for the typed error.
+		if r.Status != process.StatusFailed || r.SampleRate == 0 || o.sf.file != "" {
+			continue
+		}
+		if _, err := design.Design(spec, float64(r.SampleRate)); err != nil {
+			if _, ok := design.ValueOf(err); ok {
+				results[i].Error = fmt.Sprintf("%s: at this file's %d Hz rate: %v", r.Input, r.SampleRate, o.sf.valueError(err))
+			}
+		}
+	}
 
 	var verified []*verify.Result
 	verdict := ""

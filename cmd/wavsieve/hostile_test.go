@@ -124,10 +124,10 @@ func TestApplyRemovesStaleTemporaries(t *testing.T) {
 	}
 }
 
-// TestApplyOutputInsideInput: -r with the output folder inside the input
+// TestApplyOutputInsideInputNoNesting: -r with the output folder inside the input
 // folder works twice: the second run does not take the outputs for
 // inputs.
-func TestApplyOutputInsideInput(t *testing.T) {
+func TestApplyOutputInsideInputNoNesting(t *testing.T) {
 	in := t.TempDir()
 	writeTestWAV(t, filepath.Join(in, "a.wav"), 8000, 1, 0.2)
 	out := filepath.Join(in, "filtered")
