@@ -34,7 +34,13 @@ for a single input file --output may name the output file instead. Inputs
 are never modified, outputs are written to a temporary file and renamed into
 place when complete, and an output that already exists complete, made with
 the same design, is skipped unless --replace is given. A file whose rate cannot take the spec (an edge
-at or above its Nyquist frequency) fails alone; the others go on.
+at or above its Nyquist frequency) fails alone; the others go on. So does
+anything that is not a regular file (a FIFO, a device, a symbolic link at
+an output's name), an input shorter than its header says (--allow-short
+writes what was read, with a warning) and NaN or infinite float samples
+(--allow-nonfinite replaces them by zero, counted in the record). The
+temporary files of a run that was killed are removed by the next run into
+the same folder. Peak memory stays under 256 MB whatever the input and -j.
 
 With --zero-phase the filter runs forward, then backward over a temporary
 spill file beside the output (or in --temp-dir), so files larger than memory
