@@ -130,7 +130,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVarP(&o.input, "input", "i", "", "the run's input WAV `file` (with --probe: the file whose rate, channels and format to probe)")
 	fs.StringVarP(&o.output, "output", "o", "", "the run's output WAV `file`")
 	fs.StringVar(&o.manifest, "manifest", "", "take the spec and the files from apply's record `file` (JSON or CSV) or output folder")
-	fs.StringVar(&o.probe, "probe", "", "verify the chain with a probe instead of the recording: tones (the default) or `noise`, as --probe=noise")
+	fs.StringVar(&o.probe, "probe", "", "verify the chain with a probe of this `kind` instead of the recording: tones (the default) or noise, written --probe=noise")
 	fs.Lookup("probe").NoOptDefVal = "tones"
 	fs.IntVar(&o.rate, "rate", 0, "with --probe and no --input: the sample rate in `Hz`")
 	fs.StringVar(&o.channels, "channels", "", "check only these channels, counted from 1 (`list` such as 1,3), as apply --channels filtered")
