@@ -144,7 +144,8 @@ func TestJSONGoesThroughWriteJSON(t *testing.T) {
 // TestFlagPlaceholders: a flag's placeholder in --help (the back-quoted
 // word of its usage) must not be one of the values it takes, or the line
 // reads as if that value were the default ("--probe noise[="tones"]",
-// "--detrend none ... (default "mean")").
+// "--detrend none ... (default "mean")"); and the command list names
+// every kind of document report takes.
 func TestFlagPlaceholders(t *testing.T) {
 	cases := []struct {
 		name    string
@@ -155,6 +156,7 @@ func TestFlagPlaceholders(t *testing.T) {
 		{"verify probe", []string{"verify", "--help"}, "--probe kind[=", "--probe noise"},
 		{"spectrum detrend", []string{"spectrum", "--help"}, "--detrend trend", "--detrend none  "},
 		{"spectrum scaling", []string{"spectrum", "--help"}, "--scaling kind", "--scaling density  "},
+		{"report in the command list", []string{"--help"}, "a survey or band levels", ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
