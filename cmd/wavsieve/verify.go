@@ -359,6 +359,23 @@ func runProbe(ctx context.Context, spec design.Spec, in, out string, o verifyOpt
 	return verify.ToneProbe(ctx, ch, vo)
 }
 
+// openChecks counts the decisive checks that did not pass and names their
+// kinds for the verdict line: a standard's mask rows are named as such,
+// not as edges.
+func openChecks(checks []verify.Check) (int, string) {
+	open, mask := 0, false
+	for _, c := range checks {
+		if verify.Decisive(c.Kind) && c.Verdict != verify.Pass {
+			open++
+			mask = mask || c.Kind == verify.KindMask
+		}
+	}
+	if mask {
+		return open, "edge, cutoff, notch or mask"
+	}
+	return open, "edge, cutoff or notch"
+}
+
 func printVerify(w io.Writer, r *verify.Result) {
 	mode := "causal"
 	if r.ZeroPhase {
@@ -407,15 +424,9 @@ func printVerify(w io.Writer, r *verify.Result) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}
 	}
-	open := 0
-	for _, c := range r.Checks {
-		if verify.Decisive(c.Kind) && c.Verdict != verify.Pass {
-			open++
-		}
-	}
 	fmt.Fprintf(w, "\nVerdict: %s (%d passed, %d failed, %d unmeasurable", r.Verdict, r.Passed, r.Failed, r.Unmeasurable)
-	if open > 0 && r.Verdict != verify.Fail {
-		fmt.Fprintf(w, "; %d edge, cutoff or notch checks not shown to pass", open)
+	if open, what := openChecks(r.Checks); open > 0 && r.Verdict != verify.Fail {
+		fmt.Fprintf(w, "; %d %s checks not shown to pass", open, what)
 	}
 	fmt.Fprintln(w, ")")
 	if r.Verdict == verify.Inconclusive && r.Method == "recording" {
