@@ -94,7 +94,7 @@ const (
 	// MaxSegments the most (beyond it the interval is narrow enough, and
 	// the work stays bounded on long files).
 	MinSegments = 8
-	MaxSegments = 1024
+	MaxSegments = 256
 	// MinSegment and MaxSegment bound the segment lengths (powers of two).
 	MinSegment = 256
 	MaxSegment = 1 << 22

@@ -229,7 +229,10 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		unlock, err := runrecord.Lock(ctx, base, func() {
 			fmt.Fprintf(stderr, "wavsieve apply: waiting for another run that writes the record %s.json to finish\n", base)
 		})
-		if err != nil {
+		switch {
+		case errors.Is(err, runrecord.ErrNoLocks):
+			fmt.Fprintf(stderr, "wavsieve apply: warning: %v; runs into this folder at the same time could lose each other's rows of the record\n", err)
+		case err != nil:
 			return report(stderr, "apply", fmt.Errorf("cannot take the record's lock: %w", err), "give --manifest a path in a folder you can write")
 		}
 		defer unlock()

@@ -423,7 +423,15 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 			Channels: channelLevels(iv, bands, opt.cal),
 		})
 	}
-	if opt.plotDir != "" {
+	silent := true
+	for _, c := range bf.Channels {
+		for _, b := range c.Bands {
+			silent = silent && b.LevelDB == nil
+		}
+	}
+	if opt.plotDir != "" && silent {
+		bf.Warnings = append(bf.Warnings, "no bar chart: every band is silent")
+	} else if opt.plotDir != "" {
 		name, err := writeBandsPlot(bf, bands, opt)
 		if err != nil {
 			bf.Warnings = append(bf.Warnings, fmt.Sprintf("bar chart not written: %v", err))

@@ -231,6 +231,14 @@ wavsieve apply --json (and the run record wavsieve-manifest.json)
   The same rows are written as wavsieve-manifest.csv; runs into one
   folder add to one record, keyed by output.
 
+wavsieve bands --json
+  {"version", "caution",
+   "files": [{"path", "sample_rate_hz", "fraction", "frames", "duration_s",
+              "reference", "weighting", "filters",
+              "channels": [{"channel", "overall_db",
+                            "bands": [{"midband_hz", "exact_midband_hz",
+                                       "level_db"}]}]}]}
+
 wavsieve gather --json
   {"version", "files": [the merged record's rows, as apply's],
    "missing": [inputs no share did], "failed", "shares", "resubmit",

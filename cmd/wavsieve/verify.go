@@ -229,6 +229,10 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			res, err = verify.Files(ctx, p.spec, p.in, p.out, vo)
 		}
 		if err != nil {
+			if _, ok := design.ValueOf(err); ok && o.sf.file == "" && fs.Changed("family") {
+				// A value given by a flag: name the flag (a usage error).
+				return report(stderr, "verify", o.sf.valueError(err), "")
+			}
 			return report(stderr, "verify", err, verifyHint(err))
 		}
 		doc.Files = append(doc.Files, res)
