@@ -609,15 +609,7 @@ func printBandStage(w io.Writer, f *design.Filter, i int, st design.Designed) {
 	one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
 	fmt.Fprintf(w, "  %-36s %12s %12s %16s\n", "mask point", "at (Hz)", "designed dB", "class 1 limits")
 	for _, m := range st.Mask {
-		v := one.MagnitudeDB(m.FrequencyHz)
-		lo := "-inf"
-		if !math.IsInf(m.LowerDB, -1) {
-			lo = fmt.Sprintf("%.1f", m.LowerDB)
-		}
-		ok := "ok"
-		if !m.Within(v) {
-			ok = "OUTSIDE"
-		}
+		v, lo, ok := maskCells(one, m)
 		fmt.Fprintf(w, "  %-36s %12.4f %12.3f %7s..%-7.1f %s\n", m.Label, m.FrequencyHz, v, lo, m.UpperDB, ok)
 	}
 	fmt.Fprintf(w, "  mask: %s; points above the Nyquist frequency are left out\n", st.Mask[0].Source)
