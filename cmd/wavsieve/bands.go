@@ -185,13 +185,8 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	plotFormat := fs.String("plot-format", "png", "`format` of the charts: png or svg")
 	recursive := fs.BoolP("recursive", "r", false, "descend into sub-folders of folder inputs")
 	help := fs.BoolP("help", "h", false, "show this help")
-	if err := fs.Parse(args); err != nil {
-		return report(stderr, "bands", usagef("%v", err), "")
-	}
-	if *help {
-		fmt.Fprint(stdout, bandsHelp)
-		fmt.Fprint(stdout, fs.FlagUsages())
-		return exitOK
+	if code, done := parseOrHelp(fs, args, "bands", bandsHelp, help, stdout, stderr); done {
+		return code
 	}
 	if fs.NArg() == 0 {
 		return report(stderr, "bands", usagef("no input files or folders given"), "")
