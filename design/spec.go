@@ -79,6 +79,11 @@ type Stage struct {
 	BandwidthHz   float64 `json:"bandwidth_hz,omitempty"`
 	Q             float64 `json:"q,omitempty"`
 	OddOnly       bool    `json:"odd_harmonics_only,omitempty"`
+	// Tracking (notch stages) makes the notches follow the hum measured
+	// in each file as its frequency drifts: FundamentalHz is then the
+	// nominal value around which it is looked for, and the stage is
+	// designed at it only for reports.
+	Tracking bool `json:"tracking,omitempty"`
 }
 
 // Spec is a chain of stages run in order. With ZeroPhase set the chain

@@ -9,6 +9,9 @@ import (
 // validate checks a stage against the rate before anything is designed.
 // Every message says what is wrong and what would be accepted.
 func validate(st Stage, rate float64) error {
+	if st.Tracking && st.Family != Notch {
+		return fmt.Errorf("design: invalid spec: tracking applies to the notch family only, not %q", st.Family)
+	}
 	switch st.Family {
 	case Butterworth, Chebyshev1, Chebyshev2, Elliptic, Bessel:
 	case Notch:

@@ -57,6 +57,12 @@ type FileJob struct {
 	// Progress, if set, is called after each block with the frames done,
 	// from the goroutine that reads the input.
 	Progress func(done, total int64)
+	// NewTracker measures the hum for a tracking notch stage
+	// (design.Stage.Tracking), in a first pass over the input; a spec
+	// with such a stage fails without it. TrackPerChannel asks it for one
+	// track per channel instead of one shared by all.
+	NewTracker      NewHumTracker
+	TrackPerChannel bool
 }
 
 // StageSummary is what a manifest records of one designed stage.
@@ -86,10 +92,13 @@ type FileResult struct {
 	DitherSeed    uint64         `json:"dither_seed,omitempty"`
 	PadFrames     int            `json:"zero_phase_pad_frames,omitempty"`
 	EdgeTransient int            `json:"edge_transient_frames,omitempty"`
-	Warnings      []string       `json:"warnings,omitempty"`
-	Seconds       float64        `json:"seconds"`
-	Status        string         `json:"status"`
-	Error         string         `json:"error"`
+	// TrackRangeHz is the lowest and highest hum fundamental a tracking
+	// notch followed.
+	TrackRangeHz []float64 `json:"track_range_hz,omitempty"`
+	Warnings     []string  `json:"warnings,omitempty"`
+	Seconds      float64   `json:"seconds"`
+	Status       string    `json:"status"`
+	Error        string    `json:"error"`
 }
 
 // Statuses of a FileResult.
@@ -148,6 +157,21 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	for _, st := range filt.Stages {
 		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 	}
+	block := job.BlockFrames
+	if block <= 0 {
+		block = defaultBlockFrames
+	}
+	tIdx, err := trackingStage(filt)
+	if err != nil {
+		return res, fmt.Errorf("%s: %w", job.Input, err)
+	}
+	var trk *tracked
+	if tIdx >= 0 {
+		if trk, err = trackPass(ctx, &job, filt, tIdx, block); err != nil {
+			return res, fmt.Errorf("%s: tracking the hum: %w", job.Input, err)
+		}
+		res.TrackRangeHz = []float64{trk.lo, trk.hi}
+	}
 	outF := inF
 	if job.Encoding != 0 {
 		outF = inF.WithSample(job.Encoding, job.Bits)
@@ -177,10 +201,6 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	src := &peakSource{ctx: ctx, r: r, peak: make([]float64, inF.Channels), total: res.Frames, progress: job.Progress}
 	outPeak := make([]float64, inF.Channels)
 	cfg := Config{Channels: inF.Channels, Only: job.Only, SteadyStart: job.SteadyStart}
-	block := job.BlockFrames
-	if block <= 0 {
-		block = defaultBlockFrames
-	}
 	var out FrameSink = w
 	if job.Observe != nil {
 		if see := job.Observe(&job, inF, res.Frames, filt); see != nil {
@@ -202,7 +222,16 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	ra := newReadAhead(src, inF.Channels, block)
 	defer ra.close()
 	if job.Spec.ZeroPhase {
-		opt := zeroPhaseOptions(filt, res.Frames, inF.Channels, block)
+		var opt ZeroPhaseOptions
+		if trk != nil {
+			c, tv, err := trackedCascade(filt, trk, cfg)
+			if err != nil {
+				return res, fmt.Errorf("%s: %w", job.Input, err)
+			}
+			opt = trackedZeroPhaseOptions(filt, trk, c, tv, res.Frames, inF.Channels, block)
+		} else {
+			opt = zeroPhaseOptions(filt, res.Frames, inF.Channels, block)
+		}
 		opt.SpillMemoryBytes = job.SpillMemoryBytes
 		opt.TempDir = job.TempDir
 		if opt.TempDir == "" {
@@ -224,7 +253,18 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 		res.PadFrames, res.EdgeTransient = rep.PadFrames, rep.TransientFrames
 	} else {
-		err := causal(out, outPeak, ra, filt.Sections(), cfg)
+		var err error
+		if trk != nil {
+			var c *Cascade
+			var tv *trackComb
+			if c, tv, err = trackedCascade(filt, trk, cfg); err == nil {
+				if err = preroll(filt, trk, c, tv, inF.Channels); err == nil {
+					err = causalWith(out, outPeak, ra, c)
+				}
+			}
+		} else {
+			err = causal(out, outPeak, ra, filt.Sections(), cfg)
+		}
 		ra.close()
 		if err != nil {
 			return res, fmt.Errorf("%s: %w", job.Input, err)
@@ -294,6 +334,11 @@ func causal(dst FrameSink, peak []float64, src *readAhead, sos []design.Section,
 	if err != nil {
 		return err
 	}
+	return causalWith(dst, peak, src, c)
+}
+
+// causalWith is causal with a cascade ready to run.
+func causalWith(dst FrameSink, peak []float64, src *readAhead, c *Cascade) error {
 	wb := newWriteBehind(dst, peak, 0, src.free)
 	for {
 		p, rerr := src.next()

@@ -30,6 +30,7 @@ type specFlags struct {
 	q           float64
 	oddOnly     bool
 	zeroPhase   bool
+	track       bool
 }
 
 func (s *specFlags) register(fs *pflag.FlagSet) {
@@ -49,6 +50,7 @@ func (s *specFlags) register(fs *pflag.FlagSet) {
 	fs.Float64Var(&s.q, "notch-q", 0, "notch: constant quality factor `Q` (width = centre / Q) instead of --notch-width")
 	fs.BoolVar(&s.oddOnly, "odd-only", false, "notch: odd harmonics only")
 	fs.BoolVar(&s.zeroPhase, "zero-phase", false, "run forward and backward: the squared response meets the spec")
+	fs.BoolVar(&s.track, "track", false, "notch: the notches follow the hum measured in each file as it drifts (tracking: true)")
 }
 
 // spec builds the spec from the file or from the flags.
@@ -75,6 +77,18 @@ func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
 		if s.zeroPhase {
 			sp.ZeroPhase = true
 		}
+		if s.track {
+			n := 0
+			for i := range sp.Stages {
+				if sp.Stages[i].Family == design.Notch {
+					sp.Stages[i].Tracking = true
+					n++
+				}
+			}
+			if n == 0 {
+				return design.Spec{}, usagef("--track: %s has no notch stage to track the hum with", s.file)
+			}
+		}
 		return sp, nil
 	}
 	if s.family == "" {
@@ -84,6 +98,7 @@ func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
 		Family: s.family, Response: s.response, Order: s.order,
 		RippleDB: s.ripple, AttenuationDB: s.attenuation, BesselNorm: s.besselNorm,
 		FundamentalHz: s.fundamental, Harmonics: s.harmonics, BandwidthHz: s.bandwidth, Q: s.q, OddOnly: s.oddOnly,
+		Tracking: s.track,
 	}
 	var err error
 	if st.CutoffHz, err = parseEdges("--cutoff", s.cutoff); err != nil {

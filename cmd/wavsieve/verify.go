@@ -575,6 +575,7 @@ func probeVerify(spec design.Spec, in, out string, o verifyOpts, only []int) (*v
 		return nil, err
 	}
 	job := process.FileJob{Input: pin, Output: pout, Spec: spec, Encoding: enc, Bits: bits, NoDither: o.noDither, DitherSeed: o.seed, Only: only, TempDir: dir}
+	job.NewTracker = newHumTracker
 	res, err := process.FilterFile(context.Background(), job)
 	if err != nil {
 		return nil, fmt.Errorf("probe: %w", err)

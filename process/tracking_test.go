@@ -1,0 +1,100 @@
+package process
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"github.com/wavsieve/wavsieve/design"
+)
+
+// constTrack is a track that holds one frequency.
+type constTrack float64
+
+func (c constTrack) At(float64) float64 { return float64(c) }
+
+// combTol bounds the difference between the tracking comb held at one
+// frequency and the fixed comb designed by the design package: the two
+// realise the same transfer function in different structures, so they
+// differ by round-off alone (about 1e-12 of the signal here).
+const combTol = 1e-9
+
+// TestTrackCombMatchesDesign checks the closed forms of the tracking
+// notches (k1 = -cos w0, k2 = a2 independent of the centre) against the
+// notch sections designed by the bilinear transform: held at a constant
+// fundamental, the comb's output equals the fixed comb's, causal and
+// zero phase, at several rates.
+func TestTrackCombMatchesDesign(t *testing.T) {
+	for _, tc := range []struct {
+		name      string
+		rate      float64
+		f0, bw    float64
+		zeroPhase bool
+	}{
+		{"48 kHz causal", 48000, 50.0, 0.5, false},
+		{"44.1 kHz zero phase", 44100, 60.0, 0.5, true},
+		{"8 kHz wide notches", 8000, 50.3, 3, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			spec := design.Spec{Stages: []design.Stage{{Family: design.Notch, FundamentalHz: tc.f0, Harmonics: 9, BandwidthHz: tc.bw}}, ZeroPhase: tc.zeroPhase}
+			f, err := design.Design(spec, tc.rate)
+			if err != nil {
+				t.Fatal(err)
+			}
+			rng := rand.New(rand.NewPCG(1, 2))
+			n := int(tc.rate * 2)
+			x := make([]float64, 2*n)
+			for i := 0; i < n; i++ {
+				for c := 0; c < 2; c++ {
+					x[2*i+c] = 0.3*math.Sin(2*math.Pi*tc.f0*3*float64(i)/tc.rate+float64(c)) + 0.1*rng.NormFloat64()
+				}
+			}
+			cfg := Config{Channels: 2}
+			var harm []float64
+			for _, c := range f.Stages[0].NotchHz {
+				harm = append(harm, c/tc.f0)
+			}
+			g2 := 0.5
+			if tc.zeroPhase {
+				g2 = math.Sqrt(0.5)
+			}
+			tv, err := newTrackComb(tc.rate, cfg, []FrequencyTrack{constTrack(tc.f0)}, harm, f.Stages[0].NotchBandwidthHz, g2)
+			if err != nil {
+				t.Fatal(err)
+			}
+			c, err := newTrackedCascade(nil, cfg, tv)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var got, want []float64
+			if tc.zeroPhase {
+				opt := ZeroPhaseOptions{PadFrames: 3000}
+				want, _, err = ZeroPhaseSlice(nil, x, f.Sections(), cfg, opt)
+				if err != nil {
+					t.Fatal(err)
+				}
+				opt.cascade = c
+				tv.setPositions(-3000, int64(n)+3000-1)
+				got, _, err = ZeroPhaseSlice(nil, x, nil, cfg, opt)
+				if err != nil {
+					t.Fatal(err)
+				}
+			} else {
+				ref, err := NewCascade(f.Sections(), cfg)
+				if err != nil {
+					t.Fatal(err)
+				}
+				want = ref.Process(nil, x)
+				got = c.Process(nil, x[:len(x)/2])
+				got = append(got, c.Process(nil, x[len(x)/2:])...)
+			}
+			worst := 0.0
+			for i := range got {
+				worst = math.Max(worst, math.Abs(got[i]-want[i]))
+			}
+			if worst > combTol {
+				t.Errorf("largest difference from the designed comb %.3g, want <= %g", worst, combTol)
+			}
+		})
+	}
+}
