@@ -1,7 +1,6 @@
 package design
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -77,10 +76,10 @@ type Check struct {
 // error; nothing is clamped.
 func Design(spec Spec, rate float64) (*Filter, error) {
 	if !(rate > 0) || math.IsInf(rate, 0) {
-		return nil, fmt.Errorf("design: invalid sample rate %g Hz: it must be positive and finite", rate)
+		return nil, errorf(ErrInvalid, "invalid sample rate %g Hz: it must be positive and finite", rate)
 	}
 	if len(spec.Stages) == 0 {
-		return nil, errors.New("design: invalid spec: no stages")
+		return nil, errorf(ErrInvalid, "invalid spec: no stages")
 	}
 	f := &Filter{SampleRate: rate, ZeroPhase: spec.ZeroPhase}
 	for i, st := range spec.Stages {
@@ -286,109 +285,29 @@ func db(h complex128) float64 {
 	return 20 * math.Log10(math.Max(math.Hypot(real(h), imag(h)), 1e-300))
 }
 
-// designStage designs one stage at rate.
+// designStage designs one stage at rate through its row of the family
+// table.
 func designStage(st Stage, rate float64, zeroPhase bool) (Designed, error) {
 	if err := validate(st, rate); err != nil {
 		return Designed{}, err
 	}
+	fam, _ := lookupFamily(st.Family) // validate has found it
 	d := Designed{Spec: st, Family: st.Family, Response: st.Response}
 	passes := 1.0
 	if zeroPhase {
 		passes = 2
 	}
-	switch {
-	case st.Family == Notch:
-		d.Form = FormNotch
-		centres, widths, err := notchCentres(st, rate)
-		if err != nil {
-			return Designed{}, err
-		}
-		// Each pass is down by 3/passes dB at the edges, so that the
-		// effective response is -3 dB there.
-		g2 := math.Pow(0.5, 1/passes)
-		var all ZPK
-		all.Gain = 1
-		for i, c := range centres {
-			n := notchZPK(c, widths[i], rate, g2)
-			all.Zeros = append(all.Zeros, n.Zeros...)
-			all.Poles = append(all.Poles, n.Poles...)
-			all.Gain *= n.Gain
-			d.notchGains = append(d.notchGains, n.Gain)
-		}
-		d.ZPK, d.Order = all, len(centres)
-		d.NotchHz, d.NotchBandwidthHz = centres, widths
-		d.EdgesHz = centres
-	case st.Order > 0:
-		d.Form = FormOrder
-		d.Order = st.Order
-		wn := make([]float64, len(st.CutoffHz))
-		for i, hz := range st.CutoffHz {
-			wn[i] = Prewarp(hz, rate)
-		}
-		d.ZPK = Bilinear(analogDesign(st, st.Order, wn, st.RippleDB, st.AttenuationDB))
-		d.EdgesHz = append([]float64(nil), st.CutoffHz...)
-	default:
-		d.Form = FormTolerance
-		pb := make([]float64, len(st.PassbandHz))
-		for i, hz := range st.PassbandHz {
-			pb[i] = Prewarp(hz, rate)
-		}
-		sb := make([]float64, len(st.StopbandHz))
-		for i, hz := range st.StopbandHz {
-			sb[i] = Prewarp(hz, rate)
-		}
-		rp, rs := st.RippleDB/passes, st.AttenuationDB/passes
-		n, wn := minOrder(st.Family, st.Response, pb, sb, rp, rs)
-		if n > MaxOrder {
-			return Designed{}, fmt.Errorf("design: the tolerances need a %s filter of order %d, above the limit of %d: widen the transition band, allow more ripple or ask for less attenuation", st.Family, n, MaxOrder)
-		}
-		d.Order = n
-		d.ZPK = Bilinear(analogDesign(st, n, wn, rp, rs))
-		d.ExactEdge = "passband"
-		for _, w := range wn {
-			d.EdgesHz = append(d.EdgesHz, unwarp(w, rate))
-		}
-	}
-	if want := d.Order * (1 + len(d.Spec.CutoffHz)/2 + len(d.Spec.PassbandHz)/2); d.Form != FormNotch && len(d.ZPK.Poles) != want {
-		return Designed{}, fmt.Errorf("design: the %s design of order %d came out with %d poles instead of %d; lower the order", st.Family, d.Order, len(d.ZPK.Poles), want)
+	if err := fam.build(fam, &d, rate, passes); err != nil {
+		return Designed{}, err
 	}
 	if r := maxRadius(d.ZPK.Poles); !(r < 1) {
-		return Designed{}, fmt.Errorf("design: the %s design has a pole at radius %.15g, on or outside the unit circle: it would be unstable; lower the order or move the edges away from 0 Hz and Nyquist", st.Family, r)
+		return Designed{}, errorf(ErrUnstable, "the %s design has a pole at radius %.15g, on or outside the unit circle: it would be unstable; lower the order or move the edges away from 0 Hz and Nyquist", st.Family, r)
 	}
-	d.Sections = ToSections(d.ZPK)
+	if d.Sections == nil {
+		d.Sections = ToSections(d.ZPK)
+	}
 	d.Checks = checks(d, rate, passes)
 	return d, nil
-}
-
-// analogDesign returns the analog filter on the pre-warped axis.
-func analogDesign(st Stage, n int, wn []float64, rp, rs float64) ZPK {
-	var proto ZPK
-	switch st.Family {
-	case Butterworth:
-		proto = butterPrototype(n)
-	case Chebyshev1:
-		proto = cheby1Prototype(n, rp)
-	case Chebyshev2:
-		proto = cheby2Prototype(n, rs)
-	case Elliptic:
-		proto = ellipPrototype(n, rp, rs)
-	case Bessel:
-		norm := st.BesselNorm
-		if norm == "" {
-			norm = NormPhase
-		}
-		proto = besselPrototype(n, norm)
-	}
-	switch st.Response {
-	case Lowpass:
-		return toLowpass(proto, wn[0])
-	case Highpass:
-		return toHighpass(proto, wn[0])
-	case Bandpass:
-		return toBandpass(proto, math.Sqrt(wn[0]*wn[1]), wn[1]-wn[0])
-	default:
-		return toBandstop(proto, math.Sqrt(wn[0]*wn[1]), wn[1]-wn[0])
-	}
 }
 
 // checks evaluates the designed stage at each edge of its spec.
@@ -408,17 +327,10 @@ func checks(d Designed, rate, passes float64) []Check {
 			out = append(out, Check{FrequencyHz: hz, Kind: "stopband", DesignedDB: v, LimitDB: -st.AttenuationDB, HasLimit: true, MarginDB: -st.AttenuationDB - v})
 		}
 	case FormOrder:
-		nominal, ok := 0.0, true
-		switch st.Family {
-		case Butterworth:
-			nominal = 10 * math.Log10(0.5)
-		case Chebyshev1, Elliptic:
-			nominal = -st.RippleDB
-		case Chebyshev2:
-			nominal = -st.AttenuationDB
-		case Bessel:
-			ok = st.BesselNorm == NormMagnitude
-			nominal = 10 * math.Log10(0.5)
+		fam, _ := lookupFamily(st.Family)
+		nominal, ok := 0.0, false
+		if fam.cutoffDB != nil {
+			nominal, ok = fam.cutoffDB(st)
 		}
 		nominal *= passes
 		for _, hz := range st.CutoffHz {

@@ -312,7 +312,8 @@ func TestTextbookOrders(t *testing.T) {
 		})
 	}
 	// The unrounded Butterworth order of example 7.3: the book prints 5.305.
-	n := realOrder(Butterworth, Prewarp(0.15, 1)/Prewarp(0.1, 1), 1, 15)
+	bw, _ := lookupFamily(Butterworth)
+	n := bw.order(Prewarp(0.15, 1)/Prewarp(0.1, 1), math.Expm1(1./10*math.Ln10), math.Expm1(15./10*math.Ln10))
 	if math.Abs(n-5.305) > 0.005 {
 		t.Errorf("example 7.3 order %.4f, book 5.305", n)
 	}
@@ -822,5 +823,65 @@ func TestBesselOrderLimit(t *testing.T) {
 		if err != nil || len(f.Stages[0].ZPK.Poles) != n {
 			t.Errorf("order %d: %v", n, err)
 		}
+	}
+}
+
+// TestErrorKinds checks that design errors carry a kind the command line
+// can test with errors.Is, through the "stage N" wrapping of a chain.
+func TestErrorKinds(t *testing.T) {
+	cases := []struct {
+		name string
+		st   Stage
+		rate float64
+		want ErrorKind
+	}{
+		{"edge above nyquist", Stage{Family: Butterworth, Response: Lowpass, Order: 4, CutoffHz: Edges{30000}}, 48000, ErrAboveNyquist},
+		{"notch above nyquist", Stage{Family: Notch, FundamentalHz: 5000, BandwidthHz: 10}, 8000, ErrAboveNyquist},
+		{"order limit", Stage{Family: Butterworth, Response: Lowpass, PassbandHz: Edges{1000}, StopbandHz: Edges{1010}, RippleDB: 0.1, AttenuationDB: 100}, 8000, ErrOrderLimit},
+		{"unknown family", Stage{Family: "gaussian"}, 8000, ErrUnsupported},
+		{"no family", Stage{}, 8000, ErrInvalid},
+		{"foreign key", Stage{Family: Notch, FundamentalHz: 50, BandwidthHz: 1, Order: 2}, 8000, ErrInvalid},
+		{"bessel_norm on butterworth", Stage{Family: Butterworth, Response: Lowpass, Order: 2, CutoffHz: Edges{100}, BesselNorm: NormPhase}, 8000, ErrInvalid},
+		{"unstable", Stage{Family: Butterworth, Response: Highpass, Order: 8, CutoffHz: Edges{1e-13}}, 192000, ErrUnstable},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := Design(Spec{Stages: []Stage{{Family: Butterworth, Response: Lowpass, Order: 1, CutoffHz: Edges{10}}, c.st}}, c.rate)
+			if !errors.Is(err, c.want) || KindOf(err) != c.want {
+				t.Errorf("error %v: kind %d, want %d", err, KindOf(err), c.want)
+			}
+			for _, other := range []ErrorKind{ErrInvalid, ErrUnsupported, ErrAboveNyquist, ErrOrderLimit, ErrUnstable} {
+				if other != c.want && errors.Is(err, other) {
+					t.Errorf("error %v also reads as kind %d", err, other)
+				}
+			}
+		})
+	}
+}
+
+// TestFamilyTable checks each row of the family table: it can be found
+// by name, has its hooks, and its keys are keys of Stage.
+func TestFamilyTable(t *testing.T) {
+	var all Stage
+	all.CutoffHz, all.PassbandHz, all.StopbandHz = Edges{1}, Edges{1}, Edges{1}
+	all.Response, all.Order, all.RippleDB, all.AttenuationDB, all.BesselNorm = "x", 1, 1, 1, "x"
+	all.FundamentalHz, all.Harmonics, all.BandwidthHz, all.Q, all.OddOnly = 1, 1, 1, 1, true
+	all.Tracking = true
+	known := map[string]bool{}
+	for _, k := range setKeys(all) {
+		known[k] = true
+	}
+	for _, name := range Families() {
+		t.Run(name, func(t *testing.T) {
+			f, ok := lookupFamily(name)
+			if !ok || f.name != name || f.check == nil || f.build == nil || f.cutoff == "" {
+				t.Fatalf("row %q incomplete", name)
+			}
+			for _, k := range f.keys {
+				if !known[k] {
+					t.Errorf("key %q is not a key of Stage", k)
+				}
+			}
+		})
 	}
 }

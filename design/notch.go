@@ -1,7 +1,6 @@
 package design
 
 import (
-	"fmt"
 	"math"
 )
 
@@ -56,17 +55,17 @@ func notchCentres(st Stage, rate float64) ([]float64, []float64, error) {
 		}
 		if f+bw/2 >= nyq {
 			if h == 1 {
-				return nil, nil, fmt.Errorf("design: notch at %g Hz with %g Hz bandwidth does not fit below the Nyquist frequency %g Hz of the %g Hz rate", f, bw, nyq, rate)
+				return nil, nil, errorf(ErrAboveNyquist, "notch at %g Hz with %g Hz bandwidth does not fit below the Nyquist frequency %g Hz of the %g Hz rate", f, bw, nyq, rate)
 			}
 			break
 		}
 		if f-bw/2 <= 0 {
-			return nil, nil, fmt.Errorf("design: notch at %g Hz is narrower than its %g Hz bandwidth reaches: use a smaller bandwidth_hz or a larger q", f, bw)
+			return nil, nil, errorf(ErrInvalid, "notch at %g Hz is narrower than its %g Hz bandwidth reaches: use a smaller bandwidth_hz or a larger q", f, bw)
 		}
 		centres = append(centres, f)
 		widths = append(widths, bw)
 		if len(centres) > MaxNotches {
-			return nil, nil, fmt.Errorf("design: more than %d notches below the Nyquist frequency %g Hz: set harmonics to limit them", MaxNotches, nyq)
+			return nil, nil, errorf(ErrOrderLimit, "more than %d notches below the Nyquist frequency %g Hz: set harmonics to limit them", MaxNotches, nyq)
 		}
 	}
 	return centres, widths, nil

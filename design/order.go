@@ -35,59 +35,34 @@ func bsNat(pb []float64, s float64) float64 {
 	return math.Abs(s * (pb[0] - pb[1]) / (s*s - pb[0]*pb[1]))
 }
 
-// realOrder returns the non-integer order that meets gp dB of ripple and
-// gs dB of attenuation at selectivity nat.
-func realOrder(family string, nat, gp, gs float64) float64 {
-	ep := math.Expm1(gp / 10 * math.Ln10)
-	es := math.Expm1(gs / 10 * math.Ln10)
-	switch family {
-	case Butterworth:
-		return math.Log10(es/ep) / (2 * math.Log10(nat))
-	case Chebyshev1, Chebyshev2:
-		return math.Acosh(math.Sqrt(es/ep)) / math.Acosh(nat)
-	default: // Elliptic: degree equation N = K(k) K'(k1) / (K'(k) K(k1)).
-		m0 := 1 / (nat * nat)
-		m1 := ep / es
-		return ellipK(m0) * ellipKm1(m1) / (ellipKm1(m0) * ellipK(m1))
-	}
-}
-
 // minOrder returns the minimum prototype order and the pre-warped
 // critical frequencies to design with, so that the passband edges are
 // met exactly (ripple gp dB) and the stopband edges with margin.
-func minOrder(family, response string, pb, sb []float64, gp, gs float64) (int, []float64) {
+func minOrder(fam *family, response string, pb, sb []float64, gp, gs float64) (int, []float64) {
+	ep := math.Expm1(gp / 10 * math.Ln10)
+	es := math.Expm1(gs / 10 * math.Ln10)
 	pb = append([]float64(nil), pb...)
 	if response == Bandstop {
 		obj := func(i int) func(float64) float64 {
 			return func(w float64) float64 {
 				c := []float64{pb[0], pb[1]}
 				c[i] = w
-				return realOrder(family, selectivity(Bandstop, c, sb), gp, gs)
+				return fam.order(selectivity(Bandstop, c, sb), ep, es)
 			}
 		}
 		pb[0] = goldenMin(obj(0), pb[0], sb[0]-1e-12*sb[0])
 		pb[1] = goldenMin(obj(1), sb[1]+1e-12*sb[1], pb[1])
 	}
 	nat := selectivity(response, pb, sb)
-	x := realOrder(family, nat, gp, gs)
+	x := fam.order(nat, ep, es)
 	n := int(math.Ceil(x - 1e-12*x)) // an order that is an integer to rounding stays that integer
 	if n < 1 {
 		n = 1
 	}
-	ep := math.Expm1(gp / 10 * math.Ln10)
-	es := math.Expm1(gs / 10 * math.Ln10)
-	switch family {
-	case Butterworth:
-		// The -3 dB frequency that gives exactly gp dB at the passband edge.
-		w0 := math.Pow(ep, -1/(2*float64(n)))
-		return n, butterNatural(response, pb, w0)
-	case Chebyshev2:
-		// The stopband edge frequency that gives exactly gp dB at the passband edge.
-		nf := 1 / math.Cosh(math.Acosh(math.Sqrt(es/ep))/float64(n))
-		return n, cheby2Natural(response, pb, nf)
-	default:
+	if fam.natural == nil {
 		return n, pb
 	}
+	return n, fam.natural(response, pb, n, ep, es)
 }
 
 func butterNatural(response string, pb []float64, w0 float64) []float64 {

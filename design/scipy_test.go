@@ -146,7 +146,8 @@ func TestAgainstSciPyDesigns(t *testing.T) {
 					}
 				}
 				wn := []float64{Prewarp(c.WnHz[0], c.Rate), Prewarp(c.WnHz[1], c.Rate)}
-				st.ZPK = Bilinear(analogDesign(st.Spec, c.Order, wn, st.Spec.RippleDB, st.Spec.AttenuationDB))
+				fam, _ := lookupFamily(st.Spec.Family)
+				st.ZPK = Bilinear(analogDesign(fam, st.Spec, c.Order, wn, st.Spec.RippleDB, st.Spec.AttenuationDB))
 				f = &Filter{SampleRate: c.Rate, Stages: []Designed{st}}
 			}
 			worstDB := 0.0

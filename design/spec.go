@@ -3,7 +3,6 @@ package design
 import (
 	"bytes"
 	"encoding/json"
-	"fmt"
 )
 
 // Families, responses and Bessel normalisations accepted in a Stage.
@@ -100,17 +99,17 @@ type Spec struct {
 func ParseSpec(data []byte) (Spec, error) {
 	var probe map[string]json.RawMessage
 	if err := json.Unmarshal(data, &probe); err != nil {
-		return Spec{}, fmt.Errorf("design: spec is not a JSON object: %w", err)
+		return Spec{}, errorf(ErrInvalid, "spec is not a JSON object: %w", err)
 	}
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
 	if _, ok := probe["stages"]; ok {
 		var s Spec
 		if err := dec.Decode(&s); err != nil {
-			return Spec{}, fmt.Errorf("design: invalid spec: %w", err)
+			return Spec{}, errorf(ErrInvalid, "invalid spec: %w", err)
 		}
 		if len(s.Stages) == 0 {
-			return Spec{}, fmt.Errorf("design: invalid spec: \"stages\" is empty")
+			return Spec{}, errorf(ErrInvalid, "invalid spec: \"stages\" is empty")
 		}
 		return s, nil
 	}
@@ -119,7 +118,7 @@ func ParseSpec(data []byte) (Spec, error) {
 		ZeroPhase bool `json:"zero_phase,omitempty"`
 	}
 	if err := dec.Decode(&one); err != nil {
-		return Spec{}, fmt.Errorf("design: invalid spec: %w", err)
+		return Spec{}, errorf(ErrInvalid, "invalid spec: %w", err)
 	}
 	return Spec{Stages: []Stage{one.Stage}, ZeroPhase: one.ZeroPhase}, nil
 }

@@ -6,66 +6,63 @@ import (
 	"strings"
 )
 
-// validate checks a stage against the rate before anything is designed.
-// Every message says what is wrong and what would be accepted.
+// validate checks a stage against the rate before anything is designed:
+// its family's row, the keys that family takes, then the row's own
+// checks. Every message says what is wrong and what would be accepted.
 func validate(st Stage, rate float64) error {
-	if st.Tracking && st.Family != Notch {
-		return fmt.Errorf("design: invalid spec: tracking applies to the notch family only, not %q", st.Family)
+	if st.Family == "" {
+		return errorf(ErrInvalid, "invalid spec: no family given; use one of %s", familyList())
 	}
-	switch st.Family {
-	case Butterworth, Chebyshev1, Chebyshev2, Elliptic, Bessel:
-	case Notch:
-		return validateNotch(st, rate)
-	case "":
-		return fmt.Errorf("design: invalid spec: no family given; use one of %s", familyList)
-	default:
-		return fmt.Errorf("design: unsupported family %q; use one of %s", st.Family, familyList)
+	fam, ok := lookupFamily(st.Family)
+	if !ok {
+		return errorf(ErrUnsupported, "unsupported family %q; use one of %s", st.Family, familyList())
 	}
+	if err := fam.checkKeys(st); err != nil {
+		return err
+	}
+	return fam.check(fam, st, rate)
+}
+
+// checkClassical checks a stage of a classical family (one with a
+// prototype: order form or tolerance form).
+func checkClassical(fam *family, st Stage, rate float64) error {
 	nEdges := 1
 	switch st.Response {
 	case Lowpass, Highpass:
 	case Bandpass, Bandstop:
 		nEdges = 2
 	case "":
-		return fmt.Errorf("design: invalid spec: no response given for %s; use lowpass, highpass, bandpass or bandstop", st.Family)
+		return errorf(ErrInvalid, "invalid spec: no response given for %s; use lowpass, highpass, bandpass or bandstop", st.Family)
 	default:
-		return fmt.Errorf("design: unsupported response %q; use lowpass, highpass, bandpass or bandstop", st.Response)
-	}
-	if st.FundamentalHz != 0 || st.Harmonics != 0 || st.BandwidthHz != 0 || st.Q != 0 || st.OddOnly {
-		return fmt.Errorf("design: invalid spec: fundamental_hz, harmonics, bandwidth_hz, q and odd_harmonics_only belong to the notch family, not %s", st.Family)
+		return errorf(ErrUnsupported, "unsupported response %q; use lowpass, highpass, bandpass or bandstop", st.Response)
 	}
 	if st.BesselNorm != "" {
-		if st.Family != Bessel {
-			return fmt.Errorf("design: invalid spec: bessel_norm applies to the bessel family only, not %s", st.Family)
-		}
 		switch st.BesselNorm {
 		case NormPhase, NormDelay, NormMagnitude:
 		default:
-			return fmt.Errorf("design: unsupported bessel_norm %q; use phase, delay or magnitude", st.BesselNorm)
+			return errorf(ErrUnsupported, "unsupported bessel_norm %q; use phase, delay or magnitude", st.BesselNorm)
 		}
 	}
 	tolerance := len(st.PassbandHz) > 0 || len(st.StopbandHz) > 0
 	if tolerance {
-		return validateTolerance(st, rate, nEdges)
+		return validateTolerance(fam, st, rate, nEdges)
 	}
 	if st.Order == 0 && len(st.CutoffHz) == 0 {
-		return fmt.Errorf("design: invalid spec: give order and cutoff_hz, or passband_hz, stopband_hz, ripple_db and attenuation_db for the minimum order")
+		return errorf(ErrInvalid, "invalid spec: give order and cutoff_hz, or passband_hz, stopband_hz, ripple_db and attenuation_db for the minimum order")
 	}
 	if st.Order < 1 || st.Order > MaxOrder {
-		return fmt.Errorf("design: invalid order %d: it must be from 1 to %d (a band response has twice as many poles)", st.Order, MaxOrder)
+		return errorf(ErrInvalid, "invalid order %d: it must be from 1 to %d (a band response has twice as many poles)", st.Order, MaxOrder)
 	}
-	if st.Family == Bessel && st.Order > MaxBesselOrder {
-		return fmt.Errorf("design: invalid order %d: bessel designs are limited to order %d, where its polynomial's roots are still found accurately in float64", st.Order, MaxBesselOrder)
+	if fam.maxOrder > 0 && st.Order > fam.maxOrder {
+		return errorf(ErrInvalid, "invalid order %d: %s designs are limited to order %d%s", st.Order, st.Family, fam.maxOrder, fam.maxOrderWhy)
 	}
 	if len(st.CutoffHz) != nEdges {
-		return fmt.Errorf("design: invalid spec: a %s needs %d cutoff_hz value(s), got %d", st.Response, nEdges, len(st.CutoffHz))
+		return errorf(ErrInvalid, "invalid spec: a %s needs %d cutoff_hz value(s), got %d", st.Response, nEdges, len(st.CutoffHz))
 	}
 	if err := checkEdges("cutoff_hz", st.CutoffHz, rate); err != nil {
 		return err
 	}
-	needRipple := st.Family == Chebyshev1 || st.Family == Elliptic
-	needAtten := st.Family == Chebyshev2 || st.Family == Elliptic
-	if err := checkLevels(st, needRipple, needAtten); err != nil {
+	if err := checkLevels(st, fam.needRipple, fam.needAtten); err != nil {
 		return err
 	}
 	return nil
@@ -74,17 +71,15 @@ func validate(st Stage, rate float64) error {
 // MaxBesselOrder is the highest Bessel prototype order accepted.
 const MaxBesselOrder = 25
 
-const familyList = "butterworth, chebyshev1, chebyshev2, elliptic, bessel or notch"
-
-func validateTolerance(st Stage, rate float64, nEdges int) error {
-	if st.Family == Bessel {
-		return fmt.Errorf("design: invalid spec: bessel has no tolerance form (its order is not set by edges); give order and cutoff_hz")
+func validateTolerance(fam *family, st Stage, rate float64, nEdges int) error {
+	if fam.order == nil {
+		return errorf(ErrInvalid, "invalid spec: %s has no tolerance form (its order is not set by edges); give order and cutoff_hz", st.Family)
 	}
 	if st.Order != 0 || len(st.CutoffHz) > 0 {
-		return fmt.Errorf("design: invalid spec: give either order and cutoff_hz, or passband_hz and stopband_hz for the minimum order, not both")
+		return errorf(ErrInvalid, "invalid spec: give either order and cutoff_hz, or passband_hz and stopband_hz for the minimum order, not both")
 	}
 	if len(st.PassbandHz) != nEdges || len(st.StopbandHz) != nEdges {
-		return fmt.Errorf("design: invalid spec: a %s needs %d passband_hz and %d stopband_hz value(s), got %d and %d", st.Response, nEdges, nEdges, len(st.PassbandHz), len(st.StopbandHz))
+		return errorf(ErrInvalid, "invalid spec: a %s needs %d passband_hz and %d stopband_hz value(s), got %d and %d", st.Response, nEdges, nEdges, len(st.PassbandHz), len(st.StopbandHz))
 	}
 	if err := checkEdges("passband_hz", st.PassbandHz, rate); err != nil {
 		return err
@@ -106,59 +101,56 @@ func validateTolerance(st Stage, rate float64, nEdges int) error {
 		ok, want = p[0] < s[0] && s[1] < p[1], "passband_hz[0] < stopband_hz[0] < stopband_hz[1] < passband_hz[1]"
 	}
 	if !ok {
-		return fmt.Errorf("design: invalid spec: the bands of a %s overlap or are out of order (passband %s Hz, stopband %s Hz); it needs %s", st.Response, fmtEdges(p), fmtEdges(s), want)
+		return errorf(ErrInvalid, "invalid spec: the bands of a %s overlap or are out of order (passband %s Hz, stopband %s Hz); it needs %s", st.Response, fmtEdges(p), fmtEdges(s), want)
 	}
 	if !(st.RippleDB > 0) || !(st.AttenuationDB > 0) {
-		return fmt.Errorf("design: invalid spec: the tolerance form needs ripple_db > 0 and attenuation_db > 0 (got %g and %g)", st.RippleDB, st.AttenuationDB)
+		return errorf(ErrInvalid, "invalid spec: the tolerance form needs ripple_db > 0 and attenuation_db > 0 (got %g and %g)", st.RippleDB, st.AttenuationDB)
 	}
 	if !(st.RippleDB < st.AttenuationDB) {
-		return fmt.Errorf("design: invalid spec: ripple_db %g must be below attenuation_db %g", st.RippleDB, st.AttenuationDB)
+		return errorf(ErrInvalid, "invalid spec: ripple_db %g must be below attenuation_db %g", st.RippleDB, st.AttenuationDB)
 	}
 	return nil
 }
 
 func checkLevels(st Stage, needRipple, needAtten bool) error {
 	if needRipple && !(st.RippleDB > 0 && st.RippleDB < 100) {
-		return fmt.Errorf("design: invalid spec: %s needs ripple_db above 0 dB (and below 100), got %g", st.Family, st.RippleDB)
+		return errorf(ErrInvalid, "invalid spec: %s needs ripple_db above 0 dB (and below 100), got %g", st.Family, st.RippleDB)
 	}
 	if !needRipple && st.RippleDB != 0 {
-		return fmt.Errorf("design: invalid spec: ripple_db does not apply to %s in order form; remove it", st.Family)
+		return errorf(ErrInvalid, "invalid spec: ripple_db does not apply to %s in order form; remove it", st.Family)
 	}
 	if needAtten && !(st.AttenuationDB > 0 && st.AttenuationDB < 400) {
-		return fmt.Errorf("design: invalid spec: %s needs attenuation_db above 0 dB (and below 400), got %g", st.Family, st.AttenuationDB)
+		return errorf(ErrInvalid, "invalid spec: %s needs attenuation_db above 0 dB (and below 400), got %g", st.Family, st.AttenuationDB)
 	}
 	if !needAtten && st.AttenuationDB != 0 {
-		return fmt.Errorf("design: invalid spec: attenuation_db does not apply to %s in order form; remove it", st.Family)
+		return errorf(ErrInvalid, "invalid spec: attenuation_db does not apply to %s in order form; remove it", st.Family)
 	}
 	if needRipple && needAtten && !(st.RippleDB < st.AttenuationDB) {
-		return fmt.Errorf("design: invalid spec: ripple_db %g must be below attenuation_db %g", st.RippleDB, st.AttenuationDB)
+		return errorf(ErrInvalid, "invalid spec: ripple_db %g must be below attenuation_db %g", st.RippleDB, st.AttenuationDB)
 	}
 	return nil
 }
 
-func validateNotch(st Stage, rate float64) error {
-	if st.Response != "" || st.Order != 0 || len(st.CutoffHz)+len(st.PassbandHz)+len(st.StopbandHz) > 0 || st.RippleDB != 0 || st.AttenuationDB != 0 || st.BesselNorm != "" {
-		return fmt.Errorf("design: invalid spec: a notch stage takes fundamental_hz, bandwidth_hz or q, and optionally harmonics and odd_harmonics_only; remove the other keys")
-	}
+func validateNotch(_ *family, st Stage, rate float64) error {
 	if !(st.FundamentalHz > 0) || math.IsInf(st.FundamentalHz, 0) {
-		return fmt.Errorf("design: invalid spec: notch needs fundamental_hz above 0, got %g", st.FundamentalHz)
+		return errorf(ErrInvalid, "invalid spec: notch needs fundamental_hz above 0, got %g", st.FundamentalHz)
 	}
 	if st.FundamentalHz >= rate/2 {
-		return fmt.Errorf("design: fundamental_hz %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate", st.FundamentalHz, rate/2, rate)
+		return errorf(ErrAboveNyquist, "fundamental_hz %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate", st.FundamentalHz, rate/2, rate)
 	}
 	if st.Harmonics < 0 {
-		return fmt.Errorf("design: invalid spec: harmonics %d is negative; use 0 for every harmonic below Nyquist", st.Harmonics)
+		return errorf(ErrInvalid, "invalid spec: harmonics %d is negative; use 0 for every harmonic below Nyquist", st.Harmonics)
 	}
 	switch {
 	case st.BandwidthHz != 0 && st.Q != 0:
-		return fmt.Errorf("design: invalid spec: give bandwidth_hz or q for a notch, not both")
+		return errorf(ErrInvalid, "invalid spec: give bandwidth_hz or q for a notch, not both")
 	case st.Q != 0:
 		if !(st.Q > 0.5) || math.IsInf(st.Q, 0) {
-			return fmt.Errorf("design: invalid spec: notch q must be above 0.5, got %g", st.Q)
+			return errorf(ErrInvalid, "invalid spec: notch q must be above 0.5, got %g", st.Q)
 		}
 	default:
 		if !(st.BandwidthHz > 0) || math.IsInf(st.BandwidthHz, 0) {
-			return fmt.Errorf("design: invalid spec: notch bandwidth_hz must be above 0 Hz, got %g", st.BandwidthHz)
+			return errorf(ErrInvalid, "invalid spec: notch bandwidth_hz must be above 0 Hz, got %g", st.BandwidthHz)
 		}
 	}
 	return nil
@@ -168,14 +160,14 @@ func checkEdges(key string, e []float64, rate float64) error {
 	nyq := rate / 2
 	for _, f := range e {
 		if !(f > 0) || math.IsInf(f, 0) {
-			return fmt.Errorf("design: invalid spec: %s value %g Hz must be above 0 Hz", key, f)
+			return errorf(ErrInvalid, "invalid spec: %s value %g Hz must be above 0 Hz", key, f)
 		}
 		if f >= nyq {
-			return fmt.Errorf("design: %s value %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate; use an edge below %g Hz or a file with a higher rate", key, f, nyq, rate, nyq)
+			return errorf(ErrAboveNyquist, "%s value %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate; use an edge below %g Hz or a file with a higher rate", key, f, nyq, rate, nyq)
 		}
 	}
 	if len(e) == 2 && !(e[0] < e[1]) {
-		return fmt.Errorf("design: invalid spec: %s edges must be in increasing order, got %s Hz", key, fmtEdges(e))
+		return errorf(ErrInvalid, "invalid spec: %s edges must be in increasing order, got %s Hz", key, fmtEdges(e))
 	}
 	return nil
 }

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"sync"
 
+	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -27,30 +28,55 @@ type PlanOptions struct {
 	Shard, Shards int
 	// Replace redoes inputs whose output is already complete.
 	Replace bool
+	// Job is the filtering to be done (its spec and settings); with
+	// Recorded it decides whether an existing output may be skipped.
+	Job *FileJob
+	// Recorded returns the design digest recorded for an output by an
+	// earlier run (FileResult.DesignDigest), or "" when there is none.
+	Recorded func(output string) string
 }
 
-// Item is one planned file: its input, its output, and a reason when it
-// is to be skipped.
+// Input is one input file found by Discover. Plan fills in its header.
+type Input struct {
+	// Path is the file as found; Rel its path below the folder (or
+	// pattern) it was found in, which its output mirrors.
+	Path, Rel string
+	// Format and Frames are read from the header by Plan for the inputs
+	// of its share; Err is the error that reading it gave.
+	Format wavio.Format
+	Frames int64
+	Err    error
+}
+
+// Item is one planned file: its input (with what its header said), its
+// output, and a reason when it is to be skipped or refused.
 type Item struct {
 	Input  string
 	Output string
 	Skip   string
+	// Refuse, when not empty, fails the item without touching its
+	// output: an existing complete output made another way.
+	Refuse string
+	// Source is the discovered input, header included.
+	Source Input
 }
 
-// Plan expands inputs (files, folders and glob patterns) into items.
-// WAV files are recognised by their .wav or .bwf extension inside
-// folders; a file named explicitly is taken whatever its name. Plan
-// refuses outputs that would overwrite an input, and two inputs that
-// would write the same output.
+// Plan expands inputs (files, folders and glob patterns) into items:
+// Discover, then PlanInputs.
 func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
-	if (opt.OutputDir == "") == (opt.OutputFile == "") {
-		return nil, fmt.Errorf("process: give an output folder or, for one input, an output file")
+	found, err := Discover(inputs, opt.Recursive)
+	if err != nil {
+		return nil, err
 	}
-	if opt.Shards < 0 || opt.Shards > 0 && (opt.Shard < 1 || opt.Shard > opt.Shards) {
-		return nil, fmt.Errorf("process: invalid shard %d of %d: it must be from 1 to the number of shards", opt.Shard, opt.Shards)
-	}
-	type src struct{ path, rel string }
-	var found []src
+	return PlanInputs(found, opt)
+}
+
+// Discover expands inputs (files, folders and glob patterns) into the
+// sorted list of input files, reading nothing but folder listings. WAV
+// files are recognised by their .wav, .bwf or .rf64 extension inside
+// folders; a file named explicitly is taken whatever its name.
+func Discover(inputs []string, recursive bool) ([]Input, error) {
+	var found []Input
 	for _, arg := range inputs {
 		matches := []string{arg}
 		if strings.ContainsAny(arg, "*?[") {
@@ -69,7 +95,7 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 				return nil, fmt.Errorf("process: %w", err)
 			}
 			if !st.IsDir() {
-				found = append(found, src{p, filepath.Base(p)})
+				found = append(found, Input{Path: p, Rel: filepath.Base(p)})
 				continue
 			}
 			err = filepath.WalkDir(p, func(path string, d fs.DirEntry, err error) error {
@@ -77,14 +103,14 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 					return err
 				}
 				if d.IsDir() {
-					if path != p && !opt.Recursive {
+					if path != p && !recursive {
 						return filepath.SkipDir
 					}
 					return nil
 				}
 				if isWAVName(d.Name()) {
 					rel, _ := filepath.Rel(p, path)
-					found = append(found, src{path, rel})
+					found = append(found, Input{Path: path, Rel: rel})
 				}
 				return nil
 			})
@@ -96,43 +122,96 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 	if len(found) == 0 {
 		return nil, fmt.Errorf("process: no WAV files found in the inputs")
 	}
+	sort.SliceStable(found, func(i, j int) bool { return found[i].Path < found[j].Path })
+	return found, nil
+}
+
+// InShare reports whether the i-th input of the sorted list belongs to
+// share k of n (n 0: there are no shares).
+func InShare(i, k, n int) bool { return n <= 0 || i%n == k-1 }
+
+// PlanInputs gives each discovered input of the share its output, reads
+// its header (once: the items carry it on to filtering) and decides
+// whether an existing output is skipped. It refuses outputs that would
+// overwrite an input, and two inputs that would write the same output.
+//
+// An existing output is skipped only when it is complete (as many
+// frames, channels and the same rate as its input) and opt.Recorded
+// returns the digest of the design it would be made with now; a complete
+// output made another way, or with no record, is refused (Item.Refuse)
+// unless opt.Replace is set.
+func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
+	if (opt.OutputDir == "") == (opt.OutputFile == "") {
+		return nil, fmt.Errorf("process: give an output folder or, for one input, an output file")
+	}
+	if opt.Shards < 0 || opt.Shards > 0 && (opt.Shard < 1 || opt.Shard > opt.Shards) {
+		return nil, fmt.Errorf("process: invalid shard %d of %d: it must be from 1 to the number of shards", opt.Shard, opt.Shards)
+	}
 	if opt.OutputFile != "" && len(found) != 1 {
 		return nil, fmt.Errorf("process: an output file takes exactly one input, got %d; give an output folder instead", len(found))
 	}
-	sort.SliceStable(found, func(i, j int) bool { return found[i].path < found[j].path })
 	var items []Item
 	byOut := map[string]string{}
 	inAbs := map[string]bool{}
 	for _, f := range found {
-		a, _ := filepath.Abs(f.path)
+		a, _ := filepath.Abs(f.Path)
 		inAbs[a] = true
 	}
 	for i, f := range found {
-		if opt.Shards > 0 && i%opt.Shards != opt.Shard-1 {
+		if !InShare(i, opt.Shard, opt.Shards) {
 			continue
 		}
 		out := opt.OutputFile
 		if out == "" {
-			out = filepath.Join(opt.OutputDir, f.rel)
+			out = filepath.Join(opt.OutputDir, f.Rel)
 		}
 		oa, _ := filepath.Abs(out)
 		if inAbs[oa] {
-			return nil, fmt.Errorf("process: %s: the output %s would overwrite an input; choose another output folder", f.path, out)
+			return nil, fmt.Errorf("process: %s: the output %s would overwrite an input; choose another output folder", f.Path, out)
 		}
-		if same, err := wavio.SameFile(f.path, out); err == nil && same {
-			return nil, fmt.Errorf("process: %s: the output %s is the input file itself; choose another output folder", f.path, out)
+		if same, err := wavio.SameFile(f.Path, out); err == nil && same {
+			return nil, fmt.Errorf("process: %s: the output %s is the input file itself; choose another output folder", f.Path, out)
 		}
 		if prev, ok := byOut[oa]; ok {
-			return nil, fmt.Errorf("process: %s and %s would both be written to %s; give them separate folders", prev, f.path, out)
+			return nil, fmt.Errorf("process: %s and %s would both be written to %s; give them separate folders", prev, f.Path, out)
 		}
-		byOut[oa] = f.path
-		it := Item{Input: f.path, Output: out}
-		if !opt.Replace && completeOutput(f.path, out) {
-			it.Skip = "output exists and is complete (use the replace option to redo it)"
+		byOut[oa] = f.Path
+		if r, err := wavio.Open(f.Path, nil); err != nil {
+			f.Err = err
+		} else {
+			f.Format, f.Frames = r.Format(), r.Frames()
+			r.Close()
+		}
+		it := Item{Input: f.Path, Output: out, Source: f}
+		if !opt.Replace && f.Err == nil && completeOutput(f, out) {
+			it.Skip, it.Refuse = skipOrRefuse(f, out, opt)
 		}
 		items = append(items, it)
 	}
 	return items, nil
+}
+
+// skipOrRefuse decides about a complete existing output.
+func skipOrRefuse(f Input, out string, opt PlanOptions) (skip, refuse string) {
+	var rec string
+	if opt.Recorded != nil {
+		rec = opt.Recorded(out)
+	}
+	if rec == "" {
+		return "", fmt.Sprintf("%s: the output %s exists but no run record says how it was made; give --replace to redo it", f.Path, out)
+	}
+	if opt.Job == nil {
+		return "", fmt.Sprintf("%s: the output %s exists; give --replace to redo it", f.Path, out)
+	}
+	filt, err := design.Design(opt.Job.Spec, float64(f.Format.SampleRate))
+	if err != nil {
+		// The design fails at this rate: filtering will say why.
+		return "", ""
+	}
+	if opt.Job.DesignDigest(filt, opt.Job.OutputFormat(f.Format)) != rec {
+		return "", fmt.Sprintf("%s: the output %s exists but was made with another design or settings; give --replace to redo it", f.Path, out)
+	}
+	return "output exists, complete and made with the same design (give --replace to redo it)", ""
 }
 
 func isWAVName(n string) bool {
@@ -141,21 +220,16 @@ func isWAVName(n string) bool {
 }
 
 // completeOutput says whether out is a readable WAV file with as many
-// frames, channels and the same rate as in. Outputs are only ever
+// frames, channels and the same rate as the input. Outputs are only ever
 // renamed into place once finished, so a readable one with the right
 // length is complete.
-func completeOutput(in, out string) bool {
+func completeOutput(in Input, out string) bool {
 	o, err := wavio.Open(out, nil)
 	if err != nil {
 		return false
 	}
 	defer o.Close()
-	i, err := wavio.Open(in, nil)
-	if err != nil {
-		return false
-	}
-	defer i.Close()
-	return o.Frames() == i.Frames() && o.Format().SampleRate == i.Format().SampleRate && o.Format().Channels == i.Format().Channels
+	return o.Frames() == in.Frames && o.Format().SampleRate == in.Format.SampleRate && o.Format().Channels == in.Format.Channels
 }
 
 // Hooks are called from the workers of Run, so they must be safe for
@@ -196,6 +270,8 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 				switch {
 				case it.Skip != "":
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusSkipped, Error: it.Skip}
+				case it.Refuse != "":
+					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Refuse}
 				case ctx.Err() != nil:
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Input + ": not started: the run was interrupted"}
 				default:

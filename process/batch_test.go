@@ -266,17 +266,53 @@ func TestPlan(t *testing.T) {
 	if _, err := Plan([]string{filepath.Join(in, "sub", "c.wav"), filepath.Join(in, "sub", "deeper", "d.wav"), filepath.Join(in, "sub", "c.wav")}, PlanOptions{OutputDir: out}); err == nil {
 		t.Error("duplicate output accepted")
 	}
-	// A complete output is skipped, a broken one is redone, --replace redoes all.
+	// A complete output is skipped only when the record says it was made
+	// with the same design and settings; a broken one is redone, another
+	// design or no record is refused, and Replace redoes all.
 	os.MkdirAll(out, 0o755)
 	writeTone(t, filepath.Join(out, "a.wav"), 8000, 1, 0.05, f64, nil)
 	os.WriteFile(filepath.Join(out, "b.WAV"), []byte("RIFF...."), 0o644)
-	items, _ = Plan([]string{in}, PlanOptions{OutputDir: out})
-	if items[0].Skip == "" || items[1].Skip != "" {
-		t.Errorf("skip: %+v", items)
+	job := FileJob{Spec: design.Spec{Stages: []design.Stage{{Family: design.Butterworth, Response: design.Lowpass, Order: 2, CutoffHz: design.Edges{1000}}}}}
+	filt, err := design.Design(job.Spec, 8000)
+	if err != nil {
+		t.Fatal(err)
 	}
-	items, _ = Plan([]string{in}, PlanOptions{OutputDir: out, Replace: true})
-	if items[0].Skip != "" {
-		t.Errorf("replace: %+v", items)
+	f64Format := wavio.Format{SampleRate: 8000, Channels: 1, Bits: 64, Encoding: wavio.Float}
+	same := job.DesignDigest(filt, f64Format)
+	other := job
+	other.DitherSeed = 7
+	cases := []struct {
+		name       string
+		recorded   string
+		replace    bool
+		skip, refu bool
+	}{
+		{"same design", same, false, true, false},
+		{"other settings", other.DesignDigest(filt, f64Format), false, false, true},
+		{"no record", "", false, false, true},
+		{"replace", same, true, false, false},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			rec := func(string) string { return c.recorded }
+			items, err := Plan([]string{in}, PlanOptions{OutputDir: out, Job: &job, Recorded: rec, Replace: c.replace})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if (items[0].Skip != "") != c.skip || (items[0].Refuse != "") != c.refu {
+				t.Errorf("a.wav: skip %q refuse %q", items[0].Skip, items[0].Refuse)
+			}
+			if c.refu && !strings.Contains(items[0].Refuse, "--replace") {
+				t.Errorf("refusal does not name --replace: %s", items[0].Refuse)
+			}
+			if items[1].Skip != "" || items[1].Refuse != "" {
+				t.Errorf("broken output not redone: %+v", items[1])
+			}
+			// The header was read once, in planning, and travels with the item.
+			if items[0].Source.Frames != 400 || items[0].Source.Format.SampleRate != 8000 {
+				t.Errorf("source: %+v", items[0].Source)
+			}
+		})
 	}
 }
 

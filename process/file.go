@@ -74,31 +74,33 @@ type StageSummary struct {
 	EdgesHz  []float64 `json:"edges_hz"`
 }
 
-// FileResult is the outcome of one file.
+// FileResult is the outcome of one file. Its record (JSON and CSV) is
+// written and read by package process/runrecord, which owns its columns.
 type FileResult struct {
-	Input         string         `json:"input"`
-	Output        string         `json:"output"`
-	SampleRate    int            `json:"sample_rate_hz"`
-	Channels      int            `json:"channels"`
-	Frames        int64          `json:"frames"`
-	Format        string         `json:"format"`
-	OutFormat     string         `json:"output_format,omitempty"`
-	DurationS     float64        `json:"duration_s"`
-	ZeroPhase     bool           `json:"zero_phase"`
-	Design        []StageSummary `json:"design,omitempty"`
-	PeakInDBFS    []float64      `json:"peak_in_dbfs,omitempty"`
-	PeakOutDBFS   []float64      `json:"peak_out_dbfs,omitempty"`
-	Clipped       []int64        `json:"clipped_samples,omitempty"`
-	DitherSeed    uint64         `json:"dither_seed,omitempty"`
-	PadFrames     int            `json:"zero_phase_pad_frames,omitempty"`
-	EdgeTransient int            `json:"edge_transient_frames,omitempty"`
+	Input         string
+	Output        string
+	SampleRate    int
+	Channels      int
+	Frames        int64
+	Format        string
+	OutFormat     string
+	DurationS     float64
+	ZeroPhase     bool
+	Design        []StageSummary
+	DesignDigest  string // FileJob.DesignDigest of the design and settings used
+	PeakInDBFS    []float64
+	PeakOutDBFS   []float64
+	Clipped       []int64
+	DitherSeed    uint64
+	PadFrames     int
+	EdgeTransient int
 	// TrackRangeHz is the lowest and highest hum fundamental a tracking
 	// notch followed.
-	TrackRangeHz []float64 `json:"track_range_hz,omitempty"`
-	Warnings     []string  `json:"warnings,omitempty"`
-	Seconds      float64   `json:"seconds"`
-	Status       string    `json:"status"`
-	Error        string    `json:"error"`
+	TrackRangeHz []float64
+	Warnings     []string
+	Seconds      float64
+	Status       string
+	Error        string
 }
 
 // Statuses of a FileResult.
@@ -172,11 +174,9 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 		res.TrackRangeHz = []float64{trk.lo, trk.hi}
 	}
-	outF := inF
-	if job.Encoding != 0 {
-		outF = inF.WithSample(job.Encoding, job.Bits)
-	}
+	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()
+	res.DesignDigest = job.DesignDigest(filt, outF)
 	w, err := wavio.Create(job.Output, wavio.WriterOptions{Format: outF, Chunks: r.Chunks(), NoDither: job.NoDither, DitherSeed: job.DitherSeed})
 	if err != nil {
 		return res, fmt.Errorf("%s: %w", job.Output, err)
@@ -708,7 +708,7 @@ func describe(f *design.Filter) string {
 	var parts []string
 	for _, st := range f.Stages {
 		s := fmt.Sprintf("%s %s order %d", st.Family, st.Response, st.Order)
-		if st.Family == design.Notch {
+		if st.Form == design.FormNotch {
 			s = fmt.Sprintf("notch x%d from %g Hz", len(st.NotchHz), st.NotchHz[0])
 		} else {
 			var e []string

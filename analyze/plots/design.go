@@ -166,8 +166,9 @@ func magnitudeRange(f *design.Filter, magDB []float64) (floor, ceil float64) {
 		case design.FormTolerance:
 			att = math.Max(att, d.Spec.AttenuationDB)
 		case design.FormOrder:
-			if d.Family == design.Chebyshev2 || d.Family == design.Elliptic {
-				// The order form designs one pass to the attenuation.
+			if d.Spec.AttenuationDB > 0 {
+				// The order form designs one pass to the attenuation
+				// (only the families that need attenuation_db take it).
 				att = math.Max(att, passes*d.Spec.AttenuationDB)
 			}
 		}

@@ -31,7 +31,7 @@ type band struct{ lo, hi float64 }
 // designer accounts for the two passes of a zero-phase run). A stage of
 // another form, or one whose edges do not fit its response, gives none.
 func toleranceRegions(st design.Stage, lo, hi, floor, ceil float64) []region {
-	if st.Family == design.Notch || st.Order > 0 {
+	if st.Order > 0 { // order form; a stage without passband and stopband edges falls to the default below
 		return nil
 	}
 	pb, sb := st.PassbandHz, st.StopbandHz

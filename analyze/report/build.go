@@ -14,7 +14,7 @@ import (
 	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/analyze/plots"
 	"github.com/wavsieve/wavsieve/design"
-	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -30,16 +30,6 @@ func (o Options) maxSeconds() float64 {
 		return o.MaxSeconds
 	}
 	return 120
-}
-
-// applyManifest is an apply manifest as a report reads it: the results
-// of the run, each with the verification document when the run was verified.
-type applyManifest struct {
-	Files []struct {
-		process.FileResult
-		Verify json.RawMessage `json:"verify"`
-	} `json:"files"`
-	Spec json.RawMessage `json:"spec"`
 }
 
 // verifyDoc is the verification document of one file.
@@ -62,14 +52,24 @@ type verifyDoc struct {
 // FromApply builds the report of an apply run from its JSON manifest.
 // dir is the folder relative paths in the manifest are taken from.
 func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
-	var m applyManifest
+	var m runrecord.Record
 	if err := json.Unmarshal(manifest, &m); err != nil {
+		if errors.Is(err, runrecord.ErrNotRecord) {
+			return Report{}, fmt.Errorf("report: %w", err)
+		}
 		return Report{}, fmt.Errorf("report: the manifest is not valid JSON: %w", err)
 	}
-	if m.Files == nil {
-		return Report{}, errors.New("report: the document has no \"files\": is it a manifest of wavsieve apply?")
-	}
+	return FromRecord(&m, dir, opt)
+}
+
+// FromRecord builds the report of an apply run from its record (read by
+// package runrecord). dir is the folder relative paths in the record are
+// taken from.
+func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 	spec, err := design.ParseSpec(m.Spec)
+	if err != nil && len(m.Files) > 0 && len(m.Files[0].Spec) > 0 {
+		spec, err = design.ParseSpec(m.Files[0].Spec)
+	}
 	if err != nil {
 		return Report{}, fmt.Errorf("report: the manifest's spec: %w", err)
 	}
@@ -132,7 +132,13 @@ func FromApply(manifest []byte, dir string, opt Options) (Report, error) {
 		} else {
 			sec.Plots = append(sec.Plots, Plot{Caption: "Welch PSD averaged over channels, input and output, with 95% confidence bands; the lower panel is output minus input. " + note, SVG: svg})
 		}
-		if filt, err := design.Design(spec, float64(f.SampleRate)); err == nil {
+		fileSpec := spec
+		if len(f.Spec) > 0 {
+			if sp, err := design.ParseSpec(f.Spec); err == nil {
+				fileSpec = sp
+			}
+		}
+		if filt, err := design.Design(fileSpec, float64(f.SampleRate)); err == nil {
 			var b bytes.Buffer
 			if err := plots.Design(filt, &b, "svg", plots.DesignOptions{}); err == nil {
 				sec.Plots = append(sec.Plots, Plot{Caption: fmt.Sprintf("The filter as designed at this file's %d Hz rate: magnitude with the spec's forbidden areas, phase, group delay and poles and zeros.", f.SampleRate), SVG: b.Bytes()})

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -16,6 +15,7 @@ import (
 
 	"github.com/spf13/pflag"
 	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -37,13 +37,21 @@ spill file beside the output (or in --temp-dir), so files larger than memory
 work; the ends are padded for as long as the filter takes to ring down, by
 odd reflection, or for hum notches by the fitted hum itself.
 
-A manifest of the run (JSON and CSV) is written to the output folder, or
-where --manifest says; --json prints the JSON manifest on stdout.
+A record of the run (the manifest, JSON and CSV) is written to the output
+folder, or where --manifest says; --json prints this run's part of it on
+stdout. Runs into one folder add to one record, one row per output; runs
+that share a record wait for each other. Each row holds a digest of the
+design and settings the output was made with: an existing complete output
+is skipped only when its digest matches, and refused otherwise (give
+--replace to redo it).
 
 --shard K/N keeps every N-th input of the sorted list, starting with the
 K-th, so that N machines given the same command share an archive: in a
 Slurm array, --shard $((SLURM_ARRAY_TASK_ID+1))/$SLURM_ARRAY_TASK_COUNT;
-in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N.
+in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
+share writes its own record, wavsieve-manifest.K-of-N.json, holding the
+whole input list; 'wavsieve gather DIR' merges them and lists what is
+missing.
 
 Exit codes: 0 every file done or skipped, 1 some failed, 2 usage error.
 
@@ -158,7 +166,56 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	} else {
 		popt.OutputDir = o.output
 	}
-	items, err := process.Plan(fs.Args(), popt)
+	found, err := process.Discover(fs.Args(), popt.Recursive)
+	if err != nil {
+		return report(stderr, "apply", err, "")
+	}
+	// The record of the run: given by --manifest, or in the output
+	// folder, one per share when the inputs are shared out.
+	base := o.manifest
+	if base == "" {
+		dir := popt.OutputDir
+		if dir == "" {
+			dir = filepath.Dir(popt.OutputFile)
+		}
+		base = runrecord.Base(dir, popt.Shard, popt.Shards)
+	}
+	popt.Job = &tmpl
+
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	// Runs with one record are serialised from planning to the record's
+	// writing, so that the record always describes the files on disk.
+	if !o.dryRun {
+		unlock, err := runrecord.Lock(ctx, base, func() {
+			fmt.Fprintf(stderr, "wavsieve apply: waiting for another run that writes the record %s.json to finish\n", base)
+		})
+		if err != nil {
+			return report(stderr, "apply", fmt.Errorf("cannot take the record's lock: %w", err), "give --manifest a path in a folder you can write")
+		}
+		defer unlock()
+	}
+	rec, err := runrecord.Load(base)
+	if err != nil {
+		return report(stderr, "apply", err, "")
+	}
+	// A share also trusts the record that gather made of earlier shares.
+	var gathered *runrecord.Record
+	if popt.Shards > 0 && o.manifest == "" {
+		gathered, _ = runrecord.Load(runrecord.Base(popt.OutputDir, 0, 0))
+	}
+	popt.Recorded = func(out string) string {
+		if f, ok := rec.Lookup(out); ok && f.Status == runrecord.StatusDone {
+			return f.DesignDigest
+		}
+		if gathered != nil {
+			if f, ok := gathered.Lookup(out); ok && f.Status == runrecord.StatusDone {
+				return f.DesignDigest
+			}
+		}
+		return ""
+	}
+	items, err := process.PlanInputs(found, popt)
 	if err != nil {
 		return report(stderr, "apply", err, "")
 	}
@@ -166,8 +223,6 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return dryRun(items, tmpl, o.asJSON, stdout, stderr)
 	}
 
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
 	var inline *inlineVerify
 	if *verifyRuns {
 		inline = &inlineVerify{sessions: map[string]inlineSession{}, only: tmpl.Only}
@@ -181,22 +236,37 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if inline != nil && ctx.Err() == nil {
 		verified = inline.reports(results, stderr)
 	}
-	m := manifest{Files: manifestFiles(results, verified), Spec: spec, Workers: o.workers, Shard: o.shard}
-	base := o.manifest
-	if base == "" {
-		dir := popt.OutputDir
-		if dir == "" {
-			dir = filepath.Dir(popt.OutputFile)
+	rows := recordRows(results, spec, verified)
+	// What --json prints: this run's rows, a skipped file with what the
+	// record holds of it.
+	for i, r := range rows {
+		if f, ok := rec.Lookup(r.Output); ok && r.Status == runrecord.StatusSkipped {
+			f.Status, f.Error = r.Status, r.Error
+			rows[i] = f
 		}
-		base = filepath.Join(dir, "wavsieve-manifest")
 	}
-	if err := m.write(base); err != nil {
-		fmt.Fprintf(stderr, "wavsieve apply: writing the manifest: %v\n", err)
+	rec.Merge(rows)
+	rec.Spec, _ = json.Marshal(spec)
+	rec.Workers = o.workers
+	rec.Command = append([]string{programName(), "apply"}, args...)
+	rec.WorkingDir, _ = os.Getwd()
+	if popt.Shards > 0 {
+		rec.Share = &runrecord.Share{Index: popt.Shard, Count: popt.Shards}
+		rec.Inputs = make([]string, len(found))
+		for i, f := range found {
+			rec.Inputs[i] = f.Path
+		}
+	}
+	werr := rec.Write(base)
+	if werr != nil {
+		fmt.Fprintf(stderr, "wavsieve apply: writing the record: %v\n", werr)
 	}
 	if o.asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		enc.Encode(m)
+		run := *rec
+		run.Files = rows
+		if j, err := run.JSON(); err == nil {
+			stdout.Write(j)
+		}
 	}
 	failed, done, skipped := 0, 0, 0
 	for _, r := range results {
@@ -216,9 +286,16 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			skipped++
 		}
 	}
-	fmt.Fprintf(stderr, "wavsieve apply: %d done, %d skipped, %d failed; manifest %s.json\n", done, skipped, failed, base)
+	where := "manifest " + base + ".json"
+	if werr != nil {
+		where = "the manifest was NOT written"
+	}
+	fmt.Fprintf(stderr, "wavsieve apply: %d done, %d skipped, %d failed; %s\n", done, skipped, failed, where)
 	if ctx.Err() != nil {
 		fmt.Fprintln(stderr, "wavsieve apply: interrupted; no partial outputs were left")
+		return exitFail
+	}
+	if werr != nil {
 		return exitFail
 	}
 	if failed > 0 || !verifiedPass(verified) {
@@ -297,17 +374,18 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 		if it.Skip != "" {
 			r.Error = it.Skip
 		}
-		rd, err := wavio.Open(it.Input, nil)
-		if err != nil {
+		if it.Refuse != "" {
+			r.Error = it.Refuse
+		}
+		if err := it.Source.Err; err != nil {
 			r.Status, r.Error = process.StatusFailed, fmt.Sprintf("%s: %v", it.Input, err)
 			failed++
 			files = append(files, r)
 			continue
 		}
-		f := rd.Format()
-		r.SampleRate, r.Channels, r.Frames, r.Format = f.SampleRate, f.Channels, rd.Frames(), f.String()
+		f := it.Source.Format
+		r.SampleRate, r.Channels, r.Frames, r.Format = f.SampleRate, f.Channels, it.Source.Frames, f.String()
 		r.DurationS = float64(r.Frames) / float64(f.SampleRate)
-		rd.Close()
 		filt, err := process.DesignFor(tmpl.Spec, f.SampleRate, it.Input)
 		if err != nil {
 			r.Status, r.Error = process.StatusFailed, err.Error()
@@ -320,9 +398,13 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 		files = append(files, r)
 	}
 	if asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		enc.Encode(manifest{Files: manifestFiles(files, nil), Spec: tmpl.Spec, DryRun: true})
+		rec := runrecord.New()
+		rec.Spec, _ = json.Marshal(tmpl.Spec)
+		rec.DryRun = true
+		rec.Files = recordRows(files, tmpl.Spec, nil)
+		if j, err := rec.JSON(); err == nil {
+			stdout.Write(j)
+		}
 	} else {
 		for _, r := range files {
 			fmt.Fprintf(stdout, "%s -> %s\n", r.Input, r.Output)
@@ -361,59 +443,14 @@ func stageLine(s process.StageSummary) string {
 	return fmt.Sprintf("%s, order %d, %d sections, at %s Hz", what, s.Order, s.Sections, edges)
 }
 
-// manifest is the record of a run.
-type manifest struct {
-	Files   []manifestFile `json:"files"`
-	Spec    any            `json:"spec"`
-	Workers int            `json:"workers,omitempty"`
-	Shard   string         `json:"shard,omitempty"`
-	DryRun  bool           `json:"dry_run,omitempty"`
-}
-
-var csvHeader = []string{"input", "output", "status", "error", "sample_rate_hz", "channels", "frames", "duration_s", "format", "output_format", "zero_phase", "design", "peak_in_dbfs", "peak_out_dbfs", "clipped_samples", "dither_seed", "seconds"}
-
-// write saves the manifest as base.json and base.csv, each atomically.
-func (m manifest) write(base string) error {
-	j, err := json.MarshalIndent(m, "", " ")
-	if err != nil {
-		return err
-	}
-	if err := writeFileAtomic(base+".json", append(j, '\n')); err != nil {
-		return err
-	}
-	var b strings.Builder
-	w := csv.NewWriter(&b)
-	w.Write(csvHeader)
-	for _, r := range m.Files {
-		var d []string
-		for _, s := range r.Design {
-			d = append(d, stageLine(s))
-		}
-		w.Write([]string{
-			r.Input, r.Output, r.Status, r.Error, strconv.Itoa(r.SampleRate), strconv.Itoa(r.Channels),
-			strconv.FormatInt(r.Frames, 10), fmt.Sprintf("%.6f", r.DurationS), r.Format, r.OutFormat,
-			strconv.FormatBool(r.ZeroPhase), strings.Join(d, "; "), joinFloats(r.PeakInDBFS), joinFloats(r.PeakOutDBFS),
-			joinInts(r.Clipped), strconv.FormatUint(r.DitherSeed, 10), fmt.Sprintf("%.3f", r.Seconds),
-		})
-	}
-	w.Flush()
-	return writeFileAtomic(base+".csv", []byte(b.String()))
-}
-
-func joinFloats(v []float64) string {
-	s := make([]string, len(v))
-	for i, x := range v {
-		s[i] = strconv.FormatFloat(x, 'f', 2, 64)
-	}
-	return strings.Join(s, " ")
-}
-
-func joinInts(v []int64) string {
-	s := make([]string, len(v))
-	for i, x := range v {
-		s[i] = strconv.FormatInt(x, 10)
-	}
-	return strings.Join(s, " ")
-}
-
 func openWAV(name string) (*wavio.Reader, error) { return wavio.Open(name, nil) }
+
+// programName is how the record names this program in the commands it
+// keeps: the path it was started by when that is a wavsieve, so that a
+// resubmitted task finds the same program.
+func programName() string {
+	if len(os.Args) > 0 && strings.TrimSuffix(filepath.Base(os.Args[0]), ".exe") == "wavsieve" {
+		return os.Args[0]
+	}
+	return "wavsieve"
+}

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -108,20 +109,56 @@ func TestApplyMixedRatesFolder(t *testing.T) {
 	if err != nil || len(rows) != 5 || rows[0][0] != "input" {
 		t.Errorf("csv: %v rows, err %v", len(rows), err)
 	}
-	// A second run skips the complete outputs.
-	code, stdout, _ = runCmd(t, "apply", "--family", "butterworth", "--response", "lowpass", "--order", "4", "--cutoff", "3000", "-r", "--output", out, "--json", in)
-	if code != exitOK {
-		t.Fatalf("second run exit %d", code)
+	// A second run with the same spec skips the complete outputs, and the
+	// record keeps their rows as they were.
+	code, stdout, _ = runCmd(t, "apply", "--family", "butterworth", "--response", "lowpass", "--order", "4", "--cutoff", "5000", "-r", "--output", out, "--json", in)
+	if code != exitFail {
+		t.Fatalf("second run exit %d, want 1 (the 8 kHz file fails again)", code)
 	}
+	m = manifestDoc{}
 	json.Unmarshal([]byte(stdout), &m)
 	skipped := 0
 	for _, f := range m.Files {
 		if f.Status == "skipped" {
 			skipped++
+			if f.SampleRate == 0 || f.Frames == 0 || len(f.Design) != 1 {
+				t.Errorf("skipped %s lost its record: %+v", f.Input, f)
+			}
 		}
 	}
 	if skipped != 3 {
 		t.Errorf("%d skipped, want the 3 complete outputs", skipped)
+	}
+	rec, err := runrecord.Read(filepath.Join(out, "wavsieve-manifest.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rec.Files) != 4 {
+		t.Fatalf("record: %d rows, want 4", len(rec.Files))
+	}
+	for _, f := range rec.Files {
+		if want := "done"; !strings.HasSuffix(f.Input, "d8k.wav") && (f.Status != want || f.DesignDigest == "" || f.SampleRate == 0) {
+			t.Errorf("record row of %s after a skipping run: %+v", f.Input, f)
+		}
+	}
+	// Another design: the outputs are refused, pointing to --replace, and
+	// left as they were; with --replace they are redone.
+	code, _, stderr = runCmd(t, "apply", "--family", "butterworth", "--response", "lowpass", "--order", "4", "--cutoff", "3000", "-r", "--output", out, in)
+	if code != exitFail || !strings.Contains(stderr, "another design") || !strings.Contains(stderr, "--replace") {
+		t.Fatalf("other design: exit %d: %s", code, stderr)
+	}
+	code, _, stderr = runCmd(t, "apply", "--family", "butterworth", "--response", "lowpass", "--order", "4", "--cutoff", "3000", "-r", "--replace", "--output", out, in)
+	if code != exitOK || !strings.Contains(stderr, "4 done") {
+		t.Fatalf("--replace: exit %d: %s", code, stderr)
+	}
+	rec2, err := runrecord.Read(filepath.Join(out, "wavsieve-manifest.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, f := range rec2.Files {
+		if f.Status != "done" || f.DesignDigest == rec.Files[i].DesignDigest {
+			t.Errorf("after --replace: %s %s digest %s (was %s)", f.Input, f.Status, f.DesignDigest, rec.Files[i].DesignDigest)
+		}
 	}
 }
 

@@ -164,10 +164,10 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 }
 
 func designHint(err error) string {
-	switch s := err.Error(); {
-	case strings.Contains(s, "Nyquist"):
+	switch design.KindOf(err) {
+	case design.ErrAboveNyquist:
 		return "every edge must lie below half the sample rate of the file it is applied to"
-	case strings.Contains(s, "above the limit"):
+	case design.ErrOrderLimit:
 		return "a wider transition band lowers the order fastest"
 	}
 	return ""

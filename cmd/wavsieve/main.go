@@ -38,6 +38,7 @@ func commands() []command {
 		{"verify", "measure a filtering run and check it against the spec", runVerify},
 		{"survey", "measure mains hum, drift, rumble and clipping, and suggest a filter", runSurvey},
 		{"report", "make a self-contained HTML report of an apply run or a survey", runReport},
+		{"gather", "merge the records of the shares of a run and list what is missing", runGather},
 	}
 }
 

@@ -39,9 +39,7 @@ func newProgress(stderr io.Writer, items []process.Item, want bool) *progress {
 		if it.Skip != "" {
 			continue
 		}
-		if r, err := openFrames(it.Input); err == nil {
-			frames += r
-		}
+		frames += it.Source.Frames
 	}
 	pr.enabled = true
 	pr.p = mpb.New(mpb.WithOutput(stderr), mpb.WithWidth(40))
@@ -52,22 +50,13 @@ func newProgress(stderr io.Writer, items []process.Item, want bool) *progress {
 	return pr
 }
 
-func openFrames(name string) (int64, error) {
-	r, err := openWAV(name)
-	if err != nil {
-		return 0, err
-	}
-	defer r.Close()
-	return r.Frames(), nil
-}
-
 func (pr *progress) hooks() process.Hooks {
 	return process.Hooks{
 		Start: func(i int, it process.Item) {
 			if !pr.enabled {
 				return
 			}
-			n, _ := openFrames(it.Input)
+			n := it.Source.Frames
 			pr.mu.Lock()
 			pr.bars[i] = pr.p.AddBar(n, mpb.BarRemoveOnComplete(),
 				mpb.PrependDecorators(decor.Name(shorten(filepath.Base(it.Input), 28), decor.WCSyncSpaceR), decor.Percentage(decor.WCSyncSpace)),

@@ -3,18 +3,20 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"os"
 
 	"github.com/spf13/pflag"
 	htmlreport "github.com/wavsieve/wavsieve/analyze/report"
+	"github.com/wavsieve/wavsieve/process/runrecord"
 )
 
 const reportHelp = `Make a self-contained HTML report of an apply run or a survey.
 
 Usage:
-  wavsieve report --from <manifest.json|survey.json> --output <report.html> [flags]
+  wavsieve report --from <manifest.json|output folder|survey.json> --output <report.html> [flags]
 
 The report is one HTML file with every plot embedded as SVG; it fetches
 nothing and opens offline in any browser. From an apply manifest it shows,
@@ -81,31 +83,31 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	return exitOK
 }
 
-// buildReport reads one apply manifest or survey document.
+// buildReport reads one apply record (a JSON or CSV record, or an output
+// folder, read through package runrecord) or a survey document.
 func buildReport(name string, opt htmlreport.Options) (htmlreport.Report, error) {
-	data, err := os.ReadFile(name)
-	if err != nil {
+	rec, err := runrecord.Read(name)
+	if err == nil {
+		r, err := htmlreport.FromRecord(rec, "", opt)
+		if err != nil {
+			return r, fmt.Errorf("%s: %w", name, err)
+		}
+		return r, nil
+	}
+	if !errors.Is(err, runrecord.ErrNotRecord) {
 		return htmlreport.Report{}, err
 	}
+	data, rerr := os.ReadFile(name)
+	if rerr != nil {
+		return htmlreport.Report{}, rerr
+	}
 	var probe struct {
-		Spec  json.RawMessage   `json:"spec"`
 		Files []json.RawMessage `json:"files"`
 	}
-	if err := json.Unmarshal(data, &probe); err != nil || probe.Files == nil {
-		return htmlreport.Report{}, fmt.Errorf("%s: not a manifest of wavsieve apply nor a survey document", name)
+	if json.Unmarshal(data, &probe) != nil || probe.Files == nil {
+		return htmlreport.Report{}, fmt.Errorf("%s: not a record of wavsieve apply nor a survey document", name)
 	}
-	isSurvey := probe.Spec == nil
-	if len(probe.Files) > 0 {
-		var f map[string]json.RawMessage
-		json.Unmarshal(probe.Files[0], &f)
-		_, isSurvey = f["path"]
-	}
-	var r htmlreport.Report
-	if isSurvey {
-		r, err = htmlreport.FromSurvey(data, "", opt)
-	} else {
-		r, err = htmlreport.FromApply(data, "", opt)
-	}
+	r, err := htmlreport.FromSurvey(data, "", opt)
 	if err != nil {
 		return r, fmt.Errorf("%s: %w", name, err)
 	}

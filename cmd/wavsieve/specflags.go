@@ -35,7 +35,7 @@ type specFlags struct {
 
 func (s *specFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&s.file, "spec", "", "read the filter spec from a JSON `file`")
-	fs.StringVar(&s.family, "family", "", "filter `family`: butterworth, chebyshev1, chebyshev2, elliptic, bessel or notch")
+	fs.StringVar(&s.family, "family", "", "filter `family`: "+strings.Join(design.Families(), ", "))
 	fs.StringVar(&s.response, "response", "", "`type`: lowpass, highpass, bandpass or bandstop")
 	fs.IntVar(&s.order, "order", 0, "prototype `order` (a band response has twice as many poles); omit for the minimum order from --passband/--stopband")
 	fs.StringVar(&s.cutoff, "cutoff", "", "critical frequency in Hz, or two as `lo,hi` for a band (with --order)")

@@ -19,6 +19,7 @@ import (
 	"github.com/wavsieve/wavsieve/analyze/plots"
 	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -182,24 +183,25 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 	}
 
-	type pair struct{ in, out string }
-	var spec design.Spec
+	type pair struct {
+		in, out string
+		spec    design.Spec
+	}
 	var pairs []pair
 	if o.manifest != "" {
 		if o.sf.file != "" || fs.Changed("family") {
 			return report(stderr, "verify", usagef("--manifest carries the spec: give no --spec or filter flags with it"), "")
 		}
-		sp, files, err := readManifest(o.manifest)
+		files, err := readManifest(o.manifest)
 		if err != nil {
-			return report(stderr, "verify", err, "give the manifest.json that apply wrote (its --manifest, or wavsieve-manifest.json in the output folder)")
+			return report(stderr, "verify", err, "give the record that apply wrote (wavsieve-manifest.json in the output folder, its --manifest, or the output folder itself)")
 		}
-		if o.sf.zeroPhase {
-			sp.ZeroPhase = true
-		}
-		spec = sp
 		for _, f := range files {
-			if o.input == "" || f[0] == o.input {
-				pairs = append(pairs, pair{f[0], f[1]})
+			if o.sf.zeroPhase {
+				f.spec.ZeroPhase = true
+			}
+			if o.input == "" || f.in == o.input {
+				pairs = append(pairs, pair{f.in, f.out, f.spec})
 			}
 		}
 		if len(pairs) == 0 {
@@ -210,14 +212,13 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		if err != nil {
 			return report(stderr, "verify", err, "")
 		}
-		spec = sp
 		switch {
 		case o.probe && o.input == "" && o.rate <= 0:
 			return report(stderr, "verify", usagef("--probe needs --input FILE (for rate, channels and format) or --rate HZ"), "")
 		case !o.probe && (o.input == "" || o.output == ""):
 			return report(stderr, "verify", usagef("give the run's --input and --output files (or --manifest, or --probe)"), "")
 		}
-		pairs = []pair{{o.input, o.output}}
+		pairs = []pair{{o.input, o.output, sp}}
 	}
 	if !o.probe && o.rate > 0 {
 		return report(stderr, "verify", usagef("--rate is for --probe without --input; the files carry their rate"), "")
@@ -228,9 +229,9 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		var rep *verifyReport
 		var err error
 		if o.probe {
-			rep, err = probeVerify(spec, p.in, p.out, o, only)
+			rep, err = probeVerify(p.spec, p.in, p.out, o, only)
 		} else {
-			rep, err = verifyPair(spec, p.in, p.out, only, o.segment)
+			rep, err = verifyPair(p.spec, p.in, p.out, only, o.segment)
 		}
 		if err != nil {
 			return report(stderr, "verify", err, verifyHint(err))
@@ -281,41 +282,43 @@ func verifyHint(err error) string {
 	return ""
 }
 
-// readManifest returns the spec recorded by apply and the input and
-// output of every file done.
-func readManifest(name string) (design.Spec, [][2]string, error) {
-	b, err := os.ReadFile(name)
+// manifestPair is a file done in a recorded run, with the spec it was
+// made with.
+type manifestPair struct {
+	in, out string
+	spec    design.Spec
+}
+
+// readManifest returns the input, output and spec of every file done in
+// a run record (a JSON or CSV record, or an output folder), read through
+// its owner, package runrecord.
+func readManifest(name string) ([]manifestPair, error) {
+	rec, err := runrecord.Read(name)
 	if err != nil {
-		return design.Spec{}, nil, err
+		return nil, err
 	}
-	var m struct {
-		Spec  json.RawMessage `json:"spec"`
-		Files []struct {
-			Input  string `json:"input"`
-			Output string `json:"output"`
-			Status string `json:"status"`
-		} `json:"files"`
-	}
-	if err := json.Unmarshal(b, &m); err != nil {
-		return design.Spec{}, nil, fmt.Errorf("%s: not a manifest: %v", name, err)
-	}
-	if len(m.Spec) == 0 || string(m.Spec) == "null" {
-		return design.Spec{}, nil, fmt.Errorf("%s: the manifest records no spec", name)
-	}
-	sp, err := design.ParseSpec(m.Spec)
-	if err != nil {
-		return design.Spec{}, nil, fmt.Errorf("%s: its spec: %w", name, err)
-	}
-	var files [][2]string
-	for _, f := range m.Files {
-		if f.Status == process.StatusDone {
-			files = append(files, [2]string{f.Input, f.Output})
+	var files []manifestPair
+	for _, f := range rec.Files {
+		if f.Status != runrecord.StatusDone {
+			continue
 		}
+		raw := f.Spec
+		if len(raw) == 0 {
+			raw = rec.Spec
+		}
+		if len(raw) == 0 || string(raw) == "null" {
+			return nil, fmt.Errorf("%s: the record holds no spec for %s", name, f.Output)
+		}
+		sp, err := design.ParseSpec(raw)
+		if err != nil {
+			return nil, fmt.Errorf("%s: the spec of %s: %w", name, f.Output, err)
+		}
+		files = append(files, manifestPair{f.Input, f.Output, sp})
 	}
 	if len(files) == 0 {
-		return design.Spec{}, nil, fmt.Errorf("%s: the manifest records no file done", name)
+		return nil, fmt.Errorf("%s: the record holds no file done", name)
 	}
-	return sp, files, nil
+	return files, nil
 }
 
 // verifyPair measures the transfer from in to out, channel by channel,
@@ -705,22 +708,18 @@ func writeVerifyPlot(name string, r *verifyReport) error {
 	return writeFileAtomic(name, buf.Bytes())
 }
 
-// manifestFile is one file of apply's manifest: its result and, with
-// apply --verify, the verification of its output.
-type manifestFile struct {
-	process.FileResult
-	Verify *verifyReport `json:"verify,omitempty"`
-}
-
-// manifestFiles pairs the results with their verifications (v may be nil
-// or hold nil for files not verified).
-func manifestFiles(rs []process.FileResult, v []*verifyReport) []manifestFile {
-	out := make([]manifestFile, len(rs))
+// recordRows are the rows of a run record for the results, each with
+// the run's spec and its verification (v may be nil or hold nil for
+// files not verified).
+func recordRows(rs []process.FileResult, spec design.Spec, v []*verifyReport) []runrecord.File {
+	sp, _ := json.Marshal(spec)
+	out := make([]runrecord.File, len(rs))
 	for i, r := range rs {
-		out[i].FileResult = r
-		if i < len(v) {
-			out[i].Verify = v[i]
+		var vj json.RawMessage
+		if i < len(v) && v[i] != nil {
+			vj, _ = json.Marshal(v[i])
 		}
+		out[i] = runrecord.FromResult(r, sp, vj)
 	}
 	return out
 }
