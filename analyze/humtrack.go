@@ -48,19 +48,14 @@ const (
 	// hum of the 20th harmonic when the fundamental's reference is off
 	// by 0.5 Hz.
 	trackPhaseSeconds = 0.2
-	// trackSmoothSeconds is the half-width of the local linear fit that
-	// smooths the frequency deviations: 0.15 s averages the phase noise
-	// over 15 hops and, once the reference follows the move, leaves a
-	// bias under 0.1 mHz.
-	trackSmoothSeconds = 0.15
-	// trackLongSmoothSeconds is the half-width of the longer fit, used
-	// where the hum holds steady: 0.5 s takes the noise of the 0.15 s
-	// fit down by about 2.5.
-	trackLongSmoothSeconds = 0.5
+	// trackBlendHoldSeconds: a shorter fit takes over only where the
+	// longer one lags for this long on each side (2 hops), so that a
+	// noise peak does not switch it in.
+	trackBlendHoldSeconds = 0.04
 	// trackBlendLow and trackBlendHigh: where the two fits differ by less
 	// than trackBlendLow times the noise the long one is used, beyond
 	// trackBlendHigh the short one, and a blend in between.
-	trackBlendLow, trackBlendHigh = 3.0, 5.0
+	trackBlendLow, trackBlendHigh = 2.0, 4.0
 	// trackPasses is the number of times the phase is measured against
 	// a reference that is the previous pass's track: each pass takes
 	// the smoothing's bias down by the factor by which the residual's
@@ -88,6 +83,14 @@ const (
 	// weights (the estimate's own bias, not noise, limits it beyond).
 	trackMaxWeightDB = 60.0
 )
+
+// trackSmoothSpans are the half-widths of the local linear fits that
+// smooth the frequency deviations, longest first: 0.5 s where the hum
+// holds steady (the phase noise averaged over 50 hops), 0.15 s and
+// 0.06 s where a move makes the longer fit lag (a 1 s sag of 1.2 Hz
+// bends the frequency by 6 Hz/s^2: a fit over +-0.15 s is off by about
+// f” s^2/12 = 11 mHz there, one over +-0.06 s by 2 mHz).
+var trackSmoothSpans = []float64{0.5, 0.15, 0.06}
 
 // ErrNoHum is returned (wrapped) by Tracker.Result when no harmonic of
 // the mains stands above the floor, so there is nothing to track.
@@ -772,36 +775,50 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 	if whole {
 		base = func(int) float64 { return 0 }
 	}
-	short, okS := localFit(dev, wsum, valid, max(1, int(math.Round(trackSmoothSeconds*t.rate/hop))), base)
-	long, okL := localFit(dev, wsum, valid, max(1, int(math.Round(trackLongSmoothSeconds*t.rate/hop))), base)
-	// The long fit where the hum holds steady; the short one where the
-	// two differ by more than the noise (a move the long fit lags): the
-	// noise is read from the spread of their difference over the track,
-	// most of which is steady (1.4826 median absolute deviation, the
-	// usual robust estimate of a standard deviation).
-	var diffs []float64
-	for h := range short {
-		if okS[h] && okL[h] {
-			diffs = append(diffs, math.Abs(long[h]-short[h]))
-		}
-	}
-	noise := 1.4826 * median(diffs)
-	for h := range short {
-		if !okL[h] {
+	// Fits from the longest to the shortest: each shorter one replaces
+	// the result where the two differ by more than the noise (a move the
+	// longer fit lags), blended between trackBlendLow and trackBlendHigh
+	// times it. The noise is read from the spread of their difference
+	// over the track, most of which is steady (1.4826 median absolute
+	// deviation, the usual robust estimate of a standard deviation).
+	var cur []float64
+	var okC []bool
+	for _, sec := range trackSmoothSpans {
+		fit, ok := localFit(dev, wsum, valid, max(1, int(math.Round(sec*t.rate/hop))), base)
+		if cur == nil {
+			cur, okC = fit, ok
 			continue
 		}
-		if !okS[h] {
-			short[h], okS[h] = long[h], true
-			continue
+		var diffs []float64
+		for h := range fit {
+			if ok[h] && okC[h] {
+				diffs = append(diffs, math.Abs(cur[h]-fit[h]))
+			}
 		}
-		d := math.Abs(long[h] - short[h])
-		a := math.Min(1, math.Max(0, (d-trackBlendLow*noise)/((trackBlendHigh-trackBlendLow)*noise)))
-		if noise == 0 {
-			a = 0
+		noise := 1.4826 * median(diffs)
+		a := make([]float64, len(fit))
+		for h := range fit {
+			if ok[h] && okC[h] && noise > 0 {
+				d := math.Abs(cur[h] - fit[h])
+				a[h] = math.Min(1, math.Max(0, (d-trackBlendLow*noise)/((trackBlendHigh-trackBlendLow)*noise)))
+			}
 		}
-		short[h] = a*short[h] + (1-a)*long[h]
+		// An opening (running minimum, then running maximum, over
+		// +-trackBlendHoldSeconds): a move lasts, a noise peak does not.
+		r := max(1, int(math.Round(trackBlendHoldSeconds*t.rate/hop)))
+		a = runningMax(runningMin(a, r), r)
+		for h := range fit {
+			if !ok[h] {
+				continue
+			}
+			if !okC[h] {
+				cur[h], okC[h] = fit[h], true
+				continue
+			}
+			cur[h] = a[h]*fit[h] + (1-a[h])*cur[h]
+		}
 	}
-	return short, okS
+	return cur, okC
 }
 
 // localFit smooths the per-step deviations dev (valid where valid, of
@@ -890,6 +907,24 @@ func interpAt(xs, ys []float64, x float64) float64 {
 	}
 	f := (x - xs[i-1]) / (xs[i] - xs[i-1])
 	return ys[i-1] + f*(ys[i]-ys[i-1])
+}
+
+// runningMin and runningMax return the least and the largest of v over
+// +-r points about each point.
+func runningMin(v []float64, r int) []float64 {
+	out := make([]float64, len(v))
+	for i := range v {
+		out[i] = slices.Min(v[max(0, i-r):min(len(v), i+r+1)])
+	}
+	return out
+}
+
+func runningMax(v []float64, r int) []float64 {
+	out := make([]float64, len(v))
+	for i := range v {
+		out[i] = slices.Max(v[max(0, i-r):min(len(v), i+r+1)])
+	}
+	return out
 }
 
 // movingMean returns the mean of v over +-r points about each point
