@@ -625,8 +625,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	}
 	var f []float64
 	var valid []bool
+	noise := make([][]float64, len(used))
 	for pass := 0; pass < trackPasses; pass++ {
-		f, valid = t.phasePass(chans, used, ref, m, hop, win, pass == 0)
+		f, valid = t.phasePass(chans, used, ref, m, hop, win, pass == 0, noise)
 		tr.Bridged, tr.LongestGapS = 0, 0
 		gap := 0
 		for _, v := range valid {
@@ -665,7 +666,7 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 // reference has kinks at its points that a smoothed deviation alone
 // would keep); otherwise it smooths the deviation alone and adds it to
 // the reference, which takes the smoothing's bias down pass by pass.
-func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop float64, win []float64, whole bool) ([]float64, []bool) {
+func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop float64, win []float64, whole bool, floors [][]float64) ([]float64, []bool) {
 	n := len(ref)
 	// Reference phase, in cycles (the fraction is what matters; float64
 	// keeps 1e-9 cycles after 10 hours of 60 Hz).
@@ -678,26 +679,63 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 	lw := len(win)
 	hw := lw / 2
 	// demod returns the windowed sum of channel c mixed down by kf times
-	// the reference phase, at every hop.
-	d := make([]complex128, n)
+	// the reference phase, at every hop. The Blackman window is a sum of
+	// three cosines, so each window's sum is a combination of five running
+	// sums (of the mixed signal times 1 and exp(-+i j theta),
+	// exp(-+2 i j theta), theta = 2 pi/(lw-1)) taken at the window's two
+	// ends: one pass over the signal, whatever the window's length.
+	L := lw - 1
+	rot := make([]complex128, L) // exp(i theta j), j mod L
+	for j := range rot {
+		rot[j] = cmplx.Rect(1, 2*math.Pi*float64(j)/float64(L))
+	}
+	type sums [5]complex128
+	starts := make([]sums, m)
+	ends := make([]sums, m)
+	first := make([]int, m) // unclamped window start
+	for h := range first {
+		first[h] = int(math.Round(float64(h)*hop)) - hw
+	}
 	demod := func(c int, kf float64) []complex128 {
 		x := t.low[chans[c]]
-		for i := range d {
+		var run sums
+		hs, he := 0, 0 // next hop whose start / end snapshot is due
+		snap := func(i int) {
+			for hs < m && max(0, first[hs]) == i {
+				starts[hs] = run
+				hs++
+			}
+			for he < m && min(n, first[he]+lw) == i {
+				ends[he] = run
+				he++
+			}
+		}
+		for i := 0; i < n; i++ {
+			snap(i)
 			ph := kf * cyc[i]
 			ph -= math.Floor(ph)
-			s, co := math.Sincos(2 * math.Pi * ph)
-			d[i] = complex(float64(x[i])*co, -float64(x[i])*s)
+			sn, co := math.Sincos(2 * math.Pi * ph)
+			v := float64(x[i])
+			d := complex(v*co, -v*sn)
+			r1 := rot[i%L]
+			r2 := rot[(2*i)%L]
+			run[0] += d
+			run[1] += d * r1
+			run[2] += d * cmplx.Conj(r1)
+			run[3] += d * r2
+			run[4] += d * cmplx.Conj(r2)
 		}
+		snap(n)
 		z := make([]complex128, m)
-		for h := 0; h < m; h++ {
-			centre := int(math.Round(float64(h) * hop))
-			var sum complex128
-			for w := 0; w < lw; w++ {
-				if i := centre - hw + w; i >= 0 && i < n {
-					sum += complex(win[w], 0) * d[i]
-				}
+		for h := range z {
+			var e sums
+			for q := range e {
+				e[q] = ends[h][q] - starts[h][q]
 			}
-			z[h] = sum
+			c0 := ((first[h] % L) + L) % L
+			b1 := cmplx.Conj(rot[c0])       // exp(-i theta c0)
+			b2 := cmplx.Conj(rot[(2*c0)%L]) // exp(-2 i theta c0)
+			z[h] = 0.42*e[0] - 0.25*(b1*e[1]+cmplx.Conj(b1)*e[2]) + 0.04*(b2*e[3]+cmplx.Conj(b2)*e[4])
 		}
 		return z
 	}
@@ -710,17 +748,25 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 	thr := math.Pow(10, t.o.ThresholdDB/10)
 	maxSNR := math.Pow(10, trackMaxWeightDB/10)
 	edge := int(math.Ceil(float64(hw) / hop))
-	for _, u := range used {
+	for j, u := range used {
 		z := demod(u.c, float64(u.k))
 		// The local floor: the power halfway to the next harmonic, in the
 		// same window, averaged over +-trackFloorHops hops.
-		zn := demod(u.c, float64(u.k)+0.5)
+		// Measured in the first pass only: the floor does not depend on
+		// the reference's fine detail.
+		floor := floors[j]
+		if floor == nil {
+			zn := demod(u.c, float64(u.k)+0.5)
+			for h := range fl {
+				a := cmplx.Abs(zn[h])
+				fl[h] = a * a
+			}
+			floor = movingMean(fl, trackFloorHops)
+			floors[j] = floor
+		}
 		for h := range amps {
 			amps[h] = cmplx.Abs(z[h])
-			a := cmplx.Abs(zn[h])
-			fl[h] = a * a
 		}
-		floor := movingMean(fl, trackFloorHops)
 		// The median of the windows wholly inside the signal.
 		med := median(amps[min(m-1, edge):max(1, m-edge)])
 		snr := func(h int) float64 {

@@ -194,7 +194,7 @@ func trackedZeroPhaseOptions(f *design.Filter, t *tracked, c *Cascade, tv *track
 // started from rest takes seconds to reach its depth.
 func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) error {
 	tones := toneSet(f, t, t.tracks[0].At(0))
-	pad := f.DecaySamples(80, 0)
+	pad := f.DecaySamples(80, 1) // the dominant pole's figure, without simulation
 	pad = min(pad, memBudget/4/(8*ch))
 	m := len(t.head) / ch
 	if len(tones) == 0 || m < 2*(1+2*len(tones)) || pad == 0 {

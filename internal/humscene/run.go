@@ -12,9 +12,9 @@ import (
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
-// WriteWAV writes mono samples as a 64-bit float WAV file.
-func WriteWAV(name string, x []float64, rate float64) error {
-	w, err := wavio.Create(name, wavio.WriterOptions{Format: wavio.Format{SampleRate: int(rate), Channels: 1, Bits: 64, Encoding: wavio.Float}})
+// WriteWAV writes mono samples as a float WAV file of 32 or 64 bits.
+func WriteWAV(name string, x []float64, rate float64, bits int) error {
+	w, err := wavio.Create(name, wavio.WriterOptions{Format: wavio.Format{SampleRate: int(rate), Channels: 1, Bits: bits, Encoding: wavio.Float}})
 	if err != nil {
 		return err
 	}
@@ -52,7 +52,7 @@ func ReadWAV(name string) ([]float64, error) {
 func Filter(dir, name string, x []float64, rate float64, spec design.Spec, tracker process.NewHumTracker) ([]float64, process.FileResult, error) {
 	in := filepath.Join(dir, name+".wav")
 	out := filepath.Join(dir, name+"-out.wav")
-	if err := WriteWAV(in, x, rate); err != nil {
+	if err := WriteWAV(in, x, rate, 64); err != nil {
 		return nil, process.FileResult{}, err
 	}
 	res, err := process.FilterFile(context.Background(), process.FileJob{Input: in, Output: out, Spec: spec, NewTracker: tracker})
