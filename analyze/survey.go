@@ -54,6 +54,15 @@ const (
 	rumbleResidual = 0.01
 	// rumbleRoundHz: suggested corners are rounded up to a multiple of it.
 	rumbleRoundHz = 5.0
+	// subToneShare is the least share of a channel's power that a steady
+	// tone below the rumble corner must carry to be reported (1%, -20 dB):
+	// then it moves the meters and the headroom, and is worth a high-pass.
+	subToneShare = 0.01
+	// subToneCornerFactor puts the suggested corner for such a tone at this
+	// multiple of its frequency (then rounded up to rumbleRoundHz): the
+	// order-4 Butterworth high-pass is 10 log10(1 + 3^8) = 38 dB down there
+	// (|H|^2 = 1 / (1 + (fc/f)^2N), the Butterworth magnitude).
+	subToneCornerFactor = 3.0
 	// highpassOrder is the order of the suggested Butterworth high-pass
 	// (24 dB per octave).
 	highpassOrder = 4
@@ -197,6 +206,13 @@ type Rumble struct {
 	// above which 1% of the excess power below 200 Hz lies, rounded up to
 	// 5 Hz, and lowered to keep wanted content (0 when not Present).
 	CornerHz float64 `json:"suggested_highpass_hz"`
+	// ToneHz and ToneDBFS describe a steady tone below BelowHz that
+	// carries at least 1% of the channel's power (0 and 0 when there is
+	// none): the running median that measures the rumble does not see a
+	// narrow line, so it is looked for apart. Such a tone makes the rumble
+	// Present, with a corner at least 3 times its frequency.
+	ToneHz   float64 `json:"sub_audio_tone_hz,omitempty"`
+	ToneDBFS float64 `json:"sub_audio_tone_dbfs,omitempty"`
 }
 
 // Survey is what a Surveyor found in one signal.
@@ -850,13 +866,14 @@ func (s *Surveyor) rumble() []Rumble {
 			r.ExcessDB, r.LevelDB, r.FloorDB = 0, -400, -400
 		}
 		r.Present = r.ExcessDB >= s.o.ThresholdDB
+		corner := 0.0
 		if r.Present {
 			var total float64
 			for k := 1; k <= top; k++ {
 				total += math.Max(0, smooth[k]-ref)
 			}
 			tail := total
-			corner := float64(top) * df
+			corner = float64(top) * df
 			for k := 1; k <= top; k++ {
 				tail -= math.Max(0, smooth[k]-ref)
 				if tail <= rumbleResidual*total {
@@ -865,6 +882,13 @@ func (s *Surveyor) rumble() []Rumble {
 				}
 			}
 			corner = math.Ceil(corner/rumbleRoundHz) * rumbleRoundHz
+		}
+		if hz, p := subAudioTone(mean, smooth, below, df, s.o.ThresholdDB); hz > 0 {
+			r.ToneHz, r.ToneDBFS = hz, 10*math.Log10(p)
+			corner = math.Max(corner, math.Ceil(subToneCornerFactor*hz/rumbleRoundHz)*rumbleRoundHz)
+			r.Present = true
+		}
+		if r.Present {
 			if w := s.o.LowestWantedHz; w > 0 && corner > wantedLossFactor*w {
 				corner = math.Floor(wantedLossFactor * w)
 			}
@@ -873,6 +897,41 @@ func (s *Surveyor) rumble() []Rumble {
 		out = append(out, r)
 	}
 	return out
+}
+
+// subAudioTone finds the strongest steady tone in bins 1..below of the
+// mean density: its peak bin must stand thresholdDB above the running
+// median, and its power, the excess over the median summed over the Hann
+// main lobe (5 bins; Harris 1978, "On the use of windows for harmonic
+// analysis with the discrete Fourier transform", Proc. IEEE 66(1): the
+// Hann main lobe is 4 bins wide between its nulls), must be at least
+// subToneShare of the channel's total power. It returns the tone's
+// frequency (the power-weighted centre of the lobe) and power in FS^2,
+// or 0, 0.
+func subAudioTone(mean, smooth []float64, below int, df, thresholdDB float64) (hz, power float64) {
+	peak := 1
+	for k := 2; k <= below && k < len(smooth); k++ {
+		if mean[k] > mean[peak] {
+			peak = k
+		}
+	}
+	if peak >= len(smooth) || !(mean[peak] >= smooth[peak]*math.Pow(10, thresholdDB/10)) {
+		return 0, 0
+	}
+	var total float64
+	for _, v := range mean[1:] {
+		total += v * df
+	}
+	var p, moment float64
+	for k := max(1, peak-2); k <= peak+2 && k < len(smooth); k++ {
+		e := math.Max(0, mean[k]-smooth[k]) * df
+		p += e
+		moment += e * float64(k) * df
+	}
+	if !(p >= subToneShare*total) {
+		return 0, 0
+	}
+	return moment / p, p
 }
 
 // suggest builds the suggested spec: a Butterworth high-pass of order 4

@@ -38,6 +38,8 @@ type Designed struct {
 	// Mask is the tolerance mask of a stage defined by a standard
 	// (weighting, fractional-octave band), nil for the other families.
 	Mask []MaskPoint
+	// Weighting describes a weighting stage's design (nil otherwise).
+	Weighting *WeightingInfo
 
 	NotchHz          []float64 // centres of a notch stage
 	NotchBandwidthHz []float64 // their -3 dB widths (of the effective response)
@@ -50,6 +52,7 @@ const (
 	FormOrder     = "order"
 	FormTolerance = "tolerance"
 	FormNotch     = "notch"
+	FormStandard  = "standard" // a curve defined by a standard (weighting)
 )
 
 // Check is the designed response at one frequency of the spec. The

@@ -519,9 +519,23 @@ func TestNotchHarmonics(t *testing.T) {
 			}
 		}
 	}
-	// Every harmonic below Nyquist when harmonics is 0: 50 Hz at 8 kHz has
+	// Without harmonics, every harmonic below DefaultNotchLimitHz (1000 Hz):
+	// 50 Hz has harmonics 1..19 below it, 60 Hz 1..16 (950 and 960 Hz).
+	for _, c := range []struct {
+		f0   float64
+		want int
+	}{{50, 19}, {60, 16}, {1200, 1}} {
+		all, err := Design(Spec{Stages: []Stage{{Family: Notch, FundamentalHz: c.f0, BandwidthHz: 1}}}, 8000)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if n := len(all.Stages[0].NotchHz); n != c.want {
+			t.Errorf("%g Hz: %d notches by default, want %d", c.f0, n, c.want)
+		}
+	}
+	// Every harmonic below Nyquist when asked for: 50 Hz at 8 kHz has
 	// harmonics 1..79 with their 1 Hz bands below 4000 Hz.
-	all, err := Design(Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, BandwidthHz: 1}}}, 8000)
+	all, err := Design(Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, BandwidthHz: 1, Harmonics: 1000}}}, 8000)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -675,7 +689,7 @@ func TestBadSpecs(t *testing.T) {
 		{"stopband inside passband", Stage{Family: Chebyshev1, Response: Lowpass, PassbandHz: Edges{2000}, StopbandHz: Edges{1000}, RippleDB: 1, AttenuationDB: 40}, 8000, "overlap"},
 		{"bandstop overlap", Stage{Family: Elliptic, Response: Bandstop, PassbandHz: Edges{40, 60}, StopbandHz: Edges{30, 55}, RippleDB: 1, AttenuationDB: 40}, 8000, "overlap"},
 		{"ripple not below attenuation", Stage{Family: Elliptic, Response: Lowpass, Order: 4, CutoffHz: Edges{100}, RippleDB: 40, AttenuationDB: 30}, 8000, "below attenuation_db"},
-		{"order zero", Stage{Family: Butterworth, Response: Lowpass, CutoffHz: Edges{100}}, 8000, "invalid order 0"},
+		{"order zero", Stage{Family: Butterworth, Response: Lowpass, CutoffHz: Edges{100}}, 8000, "cutoff_hz needs order"},
 		{"order too high", Stage{Family: Butterworth, Response: Lowpass, Order: 33, CutoffHz: Edges{100}}, 8000, "from 1 to 32"},
 		{"negative bandwidth", Stage{Family: Notch, FundamentalHz: 50, BandwidthHz: -1}, 8000, "bandwidth_hz must be above 0"},
 		{"zero bandwidth", Stage{Family: Notch, FundamentalHz: 50}, 8000, "bandwidth_hz must be above 0"},
@@ -713,18 +727,27 @@ func TestBadSpecs(t *testing.T) {
 
 func TestParseSpec(t *testing.T) {
 	cases := []struct {
-		name, in string
-		stages   int
-		zp       bool
-		wantErr  string
+		name, in  string
+		stages    int
+		zp        bool
+		wantErr   string
+		line, col int // of a *SpecError; 0 for another error
 	}{
-		{"one stage, bare number", `{"family":"butterworth","response":"highpass","order":4,"cutoff_hz":20}`, 1, false, ""},
-		{"one stage zero-phase", `{"family":"butterworth","response":"bandpass","order":4,"cutoff_hz":[20,200],"zero_phase":true}`, 1, true, ""},
-		{"chain", `{"stages":[{"family":"butterworth","response":"highpass","order":2,"cutoff_hz":[30]},{"family":"notch","fundamental_hz":50,"bandwidth_hz":1}],"zero_phase":true}`, 2, true, ""},
-		{"misspelt key", `{"family":"butterworth","respones":"highpass","order":4,"cutoff_hz":20}`, 0, false, "unknown field"},
-		{"empty chain", `{"stages":[]}`, 0, false, "empty"},
-		{"not json", `family: butterworth`, 0, false, "not a JSON object"},
-		{"string edge", `{"family":"butterworth","response":"lowpass","order":4,"cutoff_hz":"20"}`, 0, false, "invalid spec"},
+		{"one stage, bare number", `{"family":"butterworth","response":"highpass","order":4,"cutoff_hz":20}`, 1, false, "", 0, 0},
+		{"one stage zero-phase", `{"family":"butterworth","response":"bandpass","order":4,"cutoff_hz":[20,200],"zero_phase":true}`, 1, true, "", 0, 0},
+		{"chain", `{"stages":[{"family":"butterworth","response":"highpass","order":2,"cutoff_hz":[30]},{"family":"notch","fundamental_hz":50,"bandwidth_hz":1}],"zero_phase":true}`, 2, true, "", 0, 0},
+		{"utf-8 byte-order mark", "\uFEFF" + `{"family":"butterworth","response":"highpass","order":4,"cutoff_hz":20}`, 1, false, "", 0, 0},
+		{"misspelt key", `{"family":"butterworth","respones":"highpass","order":4,"cutoff_hz":20}`, 0, false, `unknown key "respones"`, 1, 25},
+		{"empty chain", `{"stages":[]}`, 0, false, "empty", 0, 0},
+		{"not json", `family: butterworth`, 0, false, "not valid JSON", 1, 3},
+		{"not an object", `[1, 2]`, 0, false, "a spec is a JSON object", 1, 1},
+		{"string edge", `{"family":"butterworth","response":"lowpass","order":4,"cutoff_hz":"20"}`, 0, false, `"cutoff_hz" must be a number or an array of one or two numbers, not a string`, 1, 68},
+		{"three edges", `{"family":"butterworth","response":"lowpass","order":4,"cutoff_hz":[1,2,3]}`, 0, false, "not an array of 3", 1, 68},
+		{"bool as string", "{\"stages\": [\n  {\"family\": \"notch\", \"fundamental_hz\": 50, \"bandwidth_hz\": 1}\n ],\n \"zero_phase\": \"yes\"\n}", 0, false, `"zero_phase" must be true or false, not a string ("yes")`, 4, 16},
+		{"fractional order", "{\"family\": \"butterworth\",\n \"order\": 2.5}", 0, false, `"order" must be a whole number, not the number 2.5`, 2, 11},
+		{"trailing comma", "{\"stages\": [\n  {\"family\": \"notch\", \"fundamental_hz\": 50, \"bandwidth_hz\": 1},\n]}", 0, false, "a comma before a closing bracket", 3, 1},
+		{"unfinished", `{"family": "notch"`, 0, false, "ends before the JSON is complete", 1, 19},
+		{"key after the stages", `{"stages":[{"family":"notch","fundamental_hz":50,"bandwidth_hz":1}],"order":2}`, 0, false, `unknown key "order" in the top level`, 1, 69},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -732,6 +755,13 @@ func TestParseSpec(t *testing.T) {
 			if c.wantErr != "" {
 				if err == nil || !strings.Contains(err.Error(), c.wantErr) {
 					t.Fatalf("error %v, want %q", err, c.wantErr)
+				}
+				var se *SpecError
+				if errors.As(err, &se) != (c.line > 0) {
+					t.Fatalf("error %T %v: want a SpecError: %v", err, err, c.line > 0)
+				}
+				if se != nil && (se.Line != c.line || se.Column != c.col) {
+					t.Errorf("at line %d, column %d; want %d:%d", se.Line, se.Column, c.line, c.col)
 				}
 				return
 			}
@@ -867,6 +897,7 @@ func TestFamilyTable(t *testing.T) {
 	all.Response, all.Order, all.RippleDB, all.AttenuationDB, all.BesselNorm = "x", 1, 1, 1, "x"
 	all.FundamentalHz, all.Harmonics, all.BandwidthHz, all.Q, all.OddOnly = 1, 1, 1, 1, true
 	all.Tracking = true
+	all.Curve = "A"
 	known := map[string]bool{}
 	for _, k := range setKeys(all) {
 		known[k] = true
@@ -881,6 +912,58 @@ func TestFamilyTable(t *testing.T) {
 				if !known[k] {
 					t.Errorf("key %q is not a key of Stage", k)
 				}
+			}
+		})
+	}
+}
+
+// TestNoiseShareRemoved checks the narrow-notch estimate of the share of
+// white-noise power a comb removes against a direct numerical integral of
+// 1 - |H_eff|^2 over 0..Nyquist (the definition of that share), and the
+// warning it drives.
+func TestNoiseShareRemoved(t *testing.T) {
+	// The estimate neglects the overlap of the notches' skirts, so it is
+	// an upper bound: within a few per cent for notches far apart, more
+	// where wide notches (constant q, high harmonics) reach their
+	// neighbours. Below it by more than rounding is a defect.
+	const (
+		separatedTol = 0.05
+		overlapTol   = 0.20
+		belowTol     = 0.01
+	)
+	cases := []struct {
+		name string
+		spec Spec
+		rate float64
+		tol  float64
+		warn bool
+	}{
+		{"7 notches 2 Hz", Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, Harmonics: 7, BandwidthHz: 2}}}, 8000, separatedTol, false},
+		{"7 notches 2 Hz zero-phase", Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, Harmonics: 7, BandwidthHz: 2}}, ZeroPhase: true}, 8000, separatedTol, false},
+		{"default harmonics q 27.8", Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 50, Q: 27.8}}}, 8000, overlapTol, true},
+		{"odd q 50", Spec{Stages: []Stage{{Family: Notch, FundamentalHz: 60, Harmonics: 7, OddOnly: true, Q: 50}}}, 8000, separatedTol, false},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			f, err := Design(c.spec, c.rate)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := f.NoiseShareRemoved(0)
+			// Midpoint rule on a grid far finer than the narrowest notch.
+			const n = 400000
+			nyq := c.rate / 2
+			var sum float64
+			for i := 0; i < n; i++ {
+				hz := (float64(i) + 0.5) * nyq / n
+				sum += 1 - math.Pow(10, f.EffectiveDB(hz)/10)
+			}
+			want := sum / n
+			if got < want*(1-belowTol) || got > want*(1+c.tol) {
+				t.Errorf("share %.5f, numerical integral %.5f", got, want)
+			}
+			if w := f.Warnings(); (len(w) > 0) != c.warn {
+				t.Errorf("warnings %q, want a warning: %v", w, c.warn)
 			}
 		})
 	}

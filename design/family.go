@@ -120,6 +120,11 @@ var families = []family{
 		check: validateNotch, build: buildNotch,
 		cutoff: "none: notches at fundamental_hz and its harmonics",
 	},
+	{
+		name: Weighting, keys: []string{"curve"},
+		check: checkWeighting, build: buildWeighting,
+		cutoff: "none: the curve its standard defines",
+	},
 }
 
 // classicalKeys are the keys of the classical families (Butterworth,

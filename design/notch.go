@@ -1,6 +1,7 @@
 package design
 
 import (
+	"fmt"
 	"math"
 )
 
@@ -33,10 +34,22 @@ func notchZPK(f0, bw, rate, g2 float64) ZPK {
 // MaxNotches is the largest number of notches one notch stage may hold.
 const MaxNotches = 1024
 
+// DefaultNotchLimitHz bounds a notch stage that gives no harmonics: its
+// notches are the fundamental and every harmonic below this frequency.
+// Mains hum above 1 kHz rarely stands above a recording's floor, and each
+// notch also takes signal out (common practice; a survey lists the
+// harmonics that do stand out, and a spec can name them with harmonics).
+const DefaultNotchLimitHz = 1000
+
+// CombWarnShare is the share of white-noise power a notch stage may
+// remove before Filter.Warnings warns about it.
+const CombWarnShare = 0.05
+
 // notchCentres lists the notch frequencies of a notch stage at a rate:
 // the fundamental and its harmonics (odd ones only if asked), up to the
-// harmonic number given (0: all), keeping each whose band lies below the
-// Nyquist frequency. It also returns the bandwidth of each.
+// harmonic number given (0: those below DefaultNotchLimitHz), keeping
+// each whose band lies below the Nyquist frequency. It also returns the
+// bandwidth of each.
 func notchCentres(st Stage, rate float64) ([]float64, []float64, error) {
 	nyq := rate / 2
 	f0 := st.FundamentalHz
@@ -49,6 +62,9 @@ func notchCentres(st Stage, rate float64) ([]float64, []float64, error) {
 			continue
 		}
 		f := f0 * float64(h)
+		if st.Harmonics == 0 && h > 1 && f >= DefaultNotchLimitHz {
+			break
+		}
 		bw := st.BandwidthHz
 		if st.Q > 0 {
 			bw = f / st.Q
@@ -69,4 +85,45 @@ func notchCentres(st Stage, rate float64) ([]float64, []float64, error) {
 		}
 	}
 	return centres, widths, nil
+}
+
+// NoiseShareRemoved returns the share (0 to 1) of the power of white noise
+// that stage i, a notch stage, removes at the filter's rate, from its
+// effective response (squared when zero-phase); 0 for other stages.
+//
+// Each narrow notch is taken alone: near its centre, 1 - |H|^2 of one pass
+// of the second-order notch is a Lorentzian L of half-width B/2, where B
+// is that pass's own -3 dB width (B = w sqrt((1-g2)/g2) for a pass whose
+// edges w apart are at the power ratio g2, as in notchZPK). The integral
+// of L is pi B / 2; with two passes 1 - |H|^4 = 2L - L^2 integrates to
+// 3 pi B / 4 (integrals of the Lorentzian, derived here). The sum over the
+// notches, divided by the Nyquist frequency, is the share; overlapping
+// notches make it an overestimate, and it is capped at 1.
+func (f *Filter) NoiseShareRemoved(i int) float64 {
+	d := f.Stages[i]
+	if d.Form != FormNotch {
+		return 0
+	}
+	k, g2 := math.Pi/2, 0.5
+	if f.ZeroPhase {
+		k, g2 = 3*math.Pi/4, math.Sqrt(0.5)
+	}
+	var hz float64
+	for _, w := range d.NotchBandwidthHz {
+		hz += k * w * math.Sqrt((1-g2)/g2)
+	}
+	return math.Min(1, hz/(f.SampleRate/2))
+}
+
+// Warnings lists what a user should know about a design that is valid
+// but probably not what was meant: a notch comb that removes more than
+// CombWarnShare of broadband (white-noise) power.
+func (f *Filter) Warnings() []string {
+	var w []string
+	for i, d := range f.Stages {
+		if s := f.NoiseShareRemoved(i); s > CombWarnShare {
+			w = append(w, fmt.Sprintf("stage %d: the %d notches remove about %.0f%% of the power of broadband sound (more than %.0f%%); limit them with harmonics, or narrow them with bandwidth_hz or a larger q", i+1, len(d.NotchHz), 100*s, 100*CombWarnShare))
+		}
+	}
+	return w
 }

@@ -70,7 +70,7 @@ type Stage struct {
 	BesselNorm    string  `json:"bessel_norm,omitempty"`
 
 	// Notch stages: a second-order notch at FundamentalHz and at its
-	// harmonics up to number Harmonics (0: every harmonic below Nyquist),
+	// harmonics up to number Harmonics (0: those below DefaultNotchLimitHz),
 	// each BandwidthHz wide at -3 dB, or of constant quality factor Q
 	// (bandwidth = centre / Q) when Q is set instead.
 	FundamentalHz float64 `json:"fundamental_hz,omitempty"`
@@ -83,6 +83,10 @@ type Stage struct {
 	// nominal value around which it is looked for, and the stage is
 	// designed at it only for reports.
 	Tracking bool `json:"tracking,omitempty"`
+
+	// Weighting stages: the curve of a standard (IEC 61672-1 A, C, Z;
+	// ISO 8041-1 Wb ... Wm).
+	Curve string `json:"curve,omitempty"`
 }
 
 // Spec is a chain of stages run in order. With ZeroPhase set the chain
@@ -95,8 +99,14 @@ type Spec struct {
 
 // ParseSpec reads a spec file: either one stage object, or an object
 // with a "stages" array. Unknown keys are errors, so that a misspelt key
-// is not silently ignored.
+// is not silently ignored. A syntax error, an unknown key or a value of
+// the wrong type is a *SpecError with its line and column. A leading
+// UTF-8 byte-order mark is ignored.
 func ParseSpec(data []byte) (Spec, error) {
+	data = bytes.TrimPrefix(data, utf8BOM)
+	if err := locateSpecError(data); err != nil {
+		return Spec{}, err
+	}
 	var probe map[string]json.RawMessage
 	if err := json.Unmarshal(data, &probe); err != nil {
 		return Spec{}, errorf(ErrInvalid, "spec is not a JSON object: %w", err)

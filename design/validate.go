@@ -47,6 +47,9 @@ func checkClassical(fam *family, st Stage, rate float64) error {
 	if tolerance {
 		return validateTolerance(fam, st, rate, nEdges)
 	}
+	if st.Order == 0 && len(st.CutoffHz) > 0 {
+		return errorf(ErrInvalid, "invalid spec: cutoff_hz needs order, the prototype order (for example 4); or, for the minimum order, give passband_hz, stopband_hz, ripple_db and attenuation_db instead of cutoff_hz")
+	}
 	if st.Order == 0 && len(st.CutoffHz) == 0 {
 		return errorf(ErrInvalid, "invalid spec: give order and cutoff_hz, or passband_hz, stopband_hz, ripple_db and attenuation_db for the minimum order")
 	}
@@ -136,10 +139,10 @@ func validateNotch(_ *family, st Stage, rate float64) error {
 		return errorf(ErrInvalid, "invalid spec: notch needs fundamental_hz above 0, got %g", st.FundamentalHz)
 	}
 	if st.FundamentalHz >= rate/2 {
-		return errorf(ErrAboveNyquist, "fundamental_hz %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate", st.FundamentalHz, rate/2, rate)
+		return valueError(ErrAboveNyquist, "fundamental_hz", st.FundamentalHz, "Hz", fmt.Sprintf("is at or above the Nyquist frequency %g Hz of the %g Hz rate", rate/2, rate))
 	}
 	if st.Harmonics < 0 {
-		return errorf(ErrInvalid, "invalid spec: harmonics %d is negative; use 0 for every harmonic below Nyquist", st.Harmonics)
+		return errorf(ErrInvalid, "invalid spec: harmonics %d is negative; omit it for every harmonic below %g Hz", st.Harmonics, float64(DefaultNotchLimitHz))
 	}
 	switch {
 	case st.BandwidthHz != 0 && st.Q != 0:
@@ -160,10 +163,10 @@ func checkEdges(key string, e []float64, rate float64) error {
 	nyq := rate / 2
 	for _, f := range e {
 		if !(f > 0) || math.IsInf(f, 0) {
-			return errorf(ErrInvalid, "invalid spec: %s value %g Hz must be above 0 Hz", key, f)
+			return valueError(ErrInvalid, key, f, "Hz", "must be above 0 Hz")
 		}
 		if f >= nyq {
-			return errorf(ErrAboveNyquist, "%s value %g Hz is at or above the Nyquist frequency %g Hz of the %g Hz rate; use an edge below %g Hz or a file with a higher rate", key, f, nyq, rate, nyq)
+			return valueError(ErrAboveNyquist, key, f, "Hz", fmt.Sprintf("is at or above the Nyquist frequency %g Hz of the %g Hz rate; use an edge below %g Hz or a file with a higher rate", nyq, rate, nyq))
 		}
 	}
 	if len(e) == 2 && !(e[0] < e[1]) {

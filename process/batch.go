@@ -92,7 +92,7 @@ func Discover(inputs []string, recursive bool) ([]Input, error) {
 		for _, p := range matches {
 			st, err := os.Stat(p)
 			if err != nil {
-				return nil, fmt.Errorf("process: %w", err)
+				return nil, wavio.PathError(p, err)
 			}
 			if !st.IsDir() {
 				found = append(found, Input{Path: p, Rel: filepath.Base(p)})

@@ -458,7 +458,7 @@ func TestZeroPhaseOptionsBounded(t *testing.T) {
 	if edge := 4 * opt.PadFrames * 2 * 8; edge > memBudget/4 {
 		t.Errorf("pads take %d bytes, over a quarter of %d", edge, memBudget)
 	}
-	many, err := design.Design(design.Spec{Stages: []design.Stage{{Family: design.Notch, FundamentalHz: 50, BandwidthHz: 0.5}}}, 48000)
+	many, err := design.Design(design.Spec{Stages: []design.Stage{{Family: design.Notch, FundamentalHz: 50, BandwidthHz: 0.5, Harmonics: 1000}}}, 48000)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -121,10 +121,10 @@ func newCascade(sos []design.Section, cfg Config) (*Cascade, error) {
 	}
 	for _, ch := range cfg.Only {
 		if ch < 0 || ch >= cfg.Channels {
-			return nil, fmt.Errorf("process: invalid channel %d: the data has %d channels", ch, cfg.Channels)
+			return nil, fmt.Errorf("process: no channel %d (counted from 1): the data has %d channels", ch+1, cfg.Channels)
 		}
 		if sel[ch] {
-			return nil, fmt.Errorf("process: invalid channel set: channel %d given twice", ch)
+			return nil, fmt.Errorf("process: invalid channel set: channel %d (counted from 1) given twice", ch+1)
 		}
 		sel[ch] = true
 	}

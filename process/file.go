@@ -4,9 +4,11 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"hash/fnv"
 	"io"
 	"math"
 	"os"
+	"path/filepath"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -26,7 +28,8 @@ type FileJob struct {
 	Encoding wavio.Encoding
 	Bits     int
 	// NoDither turns off TPDF dither on integer output; DitherSeed fixes
-	// its seed (0: from the clock; the seed used is reported).
+	// its seed (0: DefaultDitherSeed of the input, so that the same input
+	// gives the same output on every run; the seed used is reported).
 	NoDither   bool
 	DitherSeed uint64
 	// Only lists the channels to filter (from 0); empty means all.
@@ -110,6 +113,19 @@ const (
 	StatusFailed  = "failed"
 )
 
+// DefaultDitherSeed is the dither seed of an input when none is given: a
+// 64-bit FNV-1a hash (a general-purpose hash, chosen for being small and
+// fixed) of the input's file name, without its folder, and its size in
+// bytes. The same file gives the same seed, so identical runs write
+// identical bytes, wherever the file is run from; files that differ in
+// name or size get unrelated dither.
+func DefaultDitherSeed(input string, size int64) uint64 {
+	h := fnv.New64a()
+	io.WriteString(h, filepath.Base(input))
+	fmt.Fprintf(h, "\x00%d", size)
+	return h.Sum64() | 1
+}
+
 // DesignFor designs spec at the sample rate of a file, naming the file
 // in the error.
 func DesignFor(spec design.Spec, rate int, name string) (*design.Filter, error) {
@@ -156,6 +172,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	if err != nil {
 		return res, err
 	}
+	res.Warnings = append(res.Warnings, filt.Warnings()...)
 	for _, st := range filt.Stages {
 		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 	}
@@ -177,7 +194,13 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()
 	res.DesignDigest = job.DesignDigest(filt, outF)
-	w, err := wavio.Create(job.Output, wavio.WriterOptions{Format: outF, Chunks: r.Chunks(), NoDither: job.NoDither, DitherSeed: job.DitherSeed})
+	seed := job.DitherSeed
+	if seed == 0 && !job.NoDither {
+		if st, err := os.Stat(job.Input); err == nil {
+			seed = DefaultDitherSeed(job.Input, st.Size())
+		}
+	}
+	w, err := wavio.Create(job.Output, wavio.WriterOptions{Format: outF, Chunks: r.Chunks(), NoDither: job.NoDither, DitherSeed: seed})
 	if err != nil {
 		return res, fmt.Errorf("%s: %w", job.Output, err)
 	}
@@ -271,7 +294,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 	}
 	if n, first := r.NonFinite(); n > 0 {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("%d NaN or infinite input samples let through, the first at frame %d channel %d", n, first.Frame, first.Channel))
+		res.Warnings = append(res.Warnings, fmt.Sprintf("%d NaN or infinite input samples let through, the first at frame %d channel %d (counted from 1)", n, first.Frame, first.Channel+1))
 	}
 	res.Clipped = w.Clipped()
 	if err := w.Close(); err != nil {
@@ -710,6 +733,8 @@ func describe(f *design.Filter) string {
 		s := fmt.Sprintf("%s %s order %d", st.Family, st.Response, st.Order)
 		if st.Form == design.FormNotch {
 			s = fmt.Sprintf("notch x%d from %g Hz", len(st.NotchHz), st.NotchHz[0])
+		} else if st.Weighting != nil {
+			s = fmt.Sprintf("%s (%s), %d poles", st.Weighting.Name(), st.Weighting.Standard, len(st.ZPK.Poles))
 		} else {
 			var e []string
 			for _, hz := range st.EdgesHz {

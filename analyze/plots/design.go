@@ -245,6 +245,7 @@ func magnitudePanel(f *design.Filter, s sweep) *plot.Plot {
 			}
 		}
 	}
+	addMasks(p, f, floor, ceil)
 	curve := addCurve(p, s.hz, s.magDB, draw.LineStyle{Color: curveColor, Width: vg.Points(1.2)})
 	if curve != nil {
 		p.Legend.Add("response", curve)
@@ -503,6 +504,11 @@ func stageDescription(d design.Designed) string {
 		}
 		return fmt.Sprintf("%d notches from %s Hz to %s Hz, %s", len(d.NotchHz),
 			hzList(d.NotchHz[:1]), hzList(d.NotchHz[len(d.NotchHz)-1:]), width)
+	case design.FormStandard:
+		if w := d.Weighting; w != nil {
+			return fmt.Sprintf("%s (%s), %d poles", w.Name(), w.Standard, len(d.ZPK.Poles))
+		}
+		return fmt.Sprintf("%s, %d poles", d.Family, len(d.ZPK.Poles))
 	case design.FormTolerance:
 		return fmt.Sprintf("%s %s of order %d from tolerances: passband %s Hz within %g dB, stopband %s Hz down %g dB",
 			d.Family, d.Response, d.Order, hzList(st.PassbandHz), st.RippleDB, hzList(st.StopbandHz), st.AttenuationDB)

@@ -13,6 +13,7 @@ import (
 
 	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/analyze/plots"
+	"github.com/wavsieve/wavsieve/analyze/verify"
 	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
@@ -35,6 +36,7 @@ func (o Options) maxSeconds() float64 {
 // verifyDoc is the verification document of one file.
 type verifyDoc struct {
 	Pass        bool   `json:"pass"`
+	Verdict     string `json:"verdict"`
 	NotMeasured bool   `json:"not_measured"`
 	Error       string `json:"error"`
 	Checks      []struct {
@@ -83,13 +85,21 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 		verdict := ""
 		var vd verifyDoc
 		if len(f.Verify) > 0 && string(f.Verify) != "null" && json.Unmarshal(f.Verify, &vd) == nil {
+			// The three words of verification: pass (every edge measured
+			// and passed), fail, inconclusive. A document without a
+			// verdict (older manifests) is judged from its checks, so that
+			// no pass is shown over unmeasured edges.
 			switch {
+			case vd.Verdict != "":
+				verdict = vd.Verdict
 			case vd.NotMeasured:
-				verdict = "not measured"
-			case vd.Pass:
-				verdict = "pass"
+				verdict = verify.Inconclusive
 			default:
-				verdict = "fail"
+				cs := make([]verify.Check, len(vd.Checks))
+				for i, c := range vd.Checks {
+					cs[i] = verify.Check{Kind: c.Kind, Verdict: c.Verdict}
+				}
+				verdict = verify.RunVerdict(cs)
 			}
 		}
 		t.Rows = append(t.Rows, []string{
@@ -148,7 +158,7 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 			sec.Facts = append(sec.Facts, [2]string{"verification", vd.Error})
 		}
 		if verdict != "" && len(vd.Checks) > 0 {
-			t := Table{Caption: "Verification (measured transfer magnitude against the design and the spec): " + strings.ToUpper(verdict),
+			t := Table{Caption: "Verification (measured transfer magnitude against the design and the spec): " + verdict,
 				Columns: []string{"frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
 				Numeric: []bool{true, false, true, true, true, true, false, false}}
 			for _, c := range vd.Checks {
@@ -361,6 +371,8 @@ func specSummary(s design.Spec) string {
 	var parts []string
 	for _, st := range s.Stages {
 		switch {
+		case st.Curve != "":
+			parts = append(parts, "weighting "+st.Curve)
 		case st.Family == design.Notch:
 			parts = append(parts, fmt.Sprintf("notches at %g Hz and harmonics", st.FundamentalHz))
 		case st.Order > 0:

@@ -117,3 +117,50 @@ func TestBadDocuments(t *testing.T) {
 	}
 	_ = os.Remove
 }
+
+// TestVerdictWords: the report shows the verification's own verdict, and
+// a document without one (an older manifest whose "pass" was true over
+// unmeasured edges) is judged from its checks: never a pass headline over
+// an unmeasured edge.
+func TestVerdictWords(t *testing.T) {
+	dir := t.TempDir()
+	in, out := filepath.Join(dir, "in.wav"), filepath.Join(dir, "out.wav")
+	writeWAV(t, in, 8000, 0.1)
+	writeWAV(t, out, 8000, 0)
+	edge := map[string]any{"frequency_hz": 1000, "kind": "passband-edge", "verdict": "pass"}
+	open := map[string]any{"frequency_hz": 50, "kind": "notch", "verdict": "unmeasurable", "reason": "too short"}
+	cases := []struct {
+		name   string
+		verify map[string]any
+		want   string
+	}{
+		{"verdict given", map[string]any{"pass": false, "verdict": "inconclusive", "checks": []any{edge, open}}, "inconclusive"},
+		{"old document over an unmeasured notch", map[string]any{"pass": true, "checks": []any{edge, open}}, "inconclusive"},
+		{"every edge passed", map[string]any{"pass": true, "verdict": "pass", "checks": []any{edge}}, "pass"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			man := map[string]any{
+				"spec":  map[string]any{"stages": []any{map[string]any{"family": "notch", "fundamental_hz": 50, "bandwidth_hz": 2, "harmonics": 3}}},
+				"files": []any{map[string]any{"input": in, "output": out, "sample_rate_hz": 8000, "channels": 1, "frames": 4000, "status": "done", "verify": c.verify}},
+			}
+			b, _ := json.Marshal(man)
+			r, err := FromApply(b, "", Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			row := r.Tables[0].Rows[0]
+			if got := row[9]; got != c.want {
+				t.Fatalf("verified column %q, want %q", got, c.want)
+			}
+			caption := "the spec): " + c.want
+			found := false
+			for _, tb := range r.Files[0].Tables {
+				found = found || strings.HasSuffix(tb.Caption, caption)
+			}
+			if !found {
+				t.Fatalf("no verification table captioned %q", caption)
+			}
+		})
+	}
+}

@@ -14,6 +14,7 @@ import (
 	"syscall"
 
 	"github.com/spf13/pflag"
+	"github.com/wavsieve/wavsieve/analyze/verify"
 	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
@@ -53,6 +54,11 @@ share writes its own record, wavsieve-manifest.K-of-N.json, holding the
 whole input list; 'wavsieve gather DIR' merges them and lists what is
 missing.
 
+--weighting CURVE adds a standard weighting (A, C, Z; Wb ... Wm) after the
+other stages, or alone ('wavsieve help weighting'). A level computed from
+a weighted file is not a sound level meter's reading: the microphone, its
+calibration and the measuring chain are unknown to wavsieve.
+
 Exit codes: 0 every file done or skipped, 1 some failed, 2 usage error.
 
 Examples:
@@ -63,6 +69,9 @@ Examples:
   wavsieve apply --family elliptic --response lowpass --passband 2000 --stopband 2500 \
       --ripple 0.1 --attenuation 80 --zero-phase --sample-format float32 \
       --output out/logger-lp.wav logger.wav
+
+  # A-weight a folder of 48 kHz recordings (each file at its own rate)
+  wavsieve apply --weighting A --output out/a-weighted recordings/
 
   # see what would be designed for each file, writing nothing
   wavsieve apply --spec hum.json --output out --recursive --dry-run archive/
@@ -106,7 +115,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.manifest, "manifest", "", "write the manifest to `base`.json and base.csv (default: in the output folder)")
 	fs.StringVar(&o.sampleFmt, "sample-format", "", "output samples: pcm16, pcm24, pcm32, float32 or float64 (default: the input's)")
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
-	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the clock; recorded in the manifest)")
+	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
 	fs.StringVar(&o.channels, "channels", "", "filter only these channels, counted from 1 (`list` such as 1,3); others pass through")
 	fs.BoolVar(&o.trackPerChannel, "track-per-channel", false, "with --track: follow the hum in each channel on its own (default: one track from all channels)")
 	fs.BoolVar(&o.steady, "steady-start", false, "causal runs start settled on the first sample, so a DC offset gives no thump")
@@ -132,6 +141,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	if o.output == "" {
 		return report(stderr, "apply", usagef("no --output folder or file given"), "")
+	}
+	if err := checkApplyOutput(o.output, fs.Args()); err != nil {
+		return report(stderr, "apply", err, "")
 	}
 	popt := process.PlanOptions{Recursive: o.recursive, Replace: o.replace}
 	if o.shard != "" {
@@ -223,18 +235,19 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return dryRun(items, tmpl, o.asJSON, stdout, stderr)
 	}
 
-	var inline *inlineVerify
+	var inline *verify.Observer
 	if *verifyRuns {
-		inline = &inlineVerify{sessions: map[string]inlineSession{}, only: tmpl.Only}
-		tmpl.Observe = inline.observe
+		inline = verify.NewObserver(verify.Options{Channels: tmpl.Only})
+		tmpl.Observe = inline.Observe
 	}
 	prog := newProgress(stderr, items, !o.noProgress)
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
 
-	var verified []*verifyReport
+	var verified []*verify.Result
+	verdict := ""
 	if inline != nil && ctx.Err() == nil {
-		verified = inline.reports(results, stderr)
+		verified, verdict = inlineReports(inline, results, stderr)
 	}
 	rows := recordRows(results, spec, verified)
 	// What --json prints: this run's rows, a skipped file with what the
@@ -291,6 +304,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		where = "the manifest was NOT written"
 	}
 	fmt.Fprintf(stderr, "wavsieve apply: %d done, %d skipped, %d failed; %s\n", done, skipped, failed, where)
+	if verdict != "" {
+		fmt.Fprintf(stderr, "wavsieve apply: verification: %s\n", verdict)
+	}
 	if ctx.Err() != nil {
 		fmt.Fprintln(stderr, "wavsieve apply: interrupted; no partial outputs were left")
 		return exitFail
@@ -298,7 +314,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if werr != nil {
 		return exitFail
 	}
-	if failed > 0 || !verifiedPass(verified) {
+	if failed > 0 || verdict == verify.Fail {
 		return exitFail
 	}
 	return exitOK
@@ -352,6 +368,36 @@ func parseChannels(s string) ([]int, error) {
 		out = append(out, n-1)
 	}
 	return out, nil
+}
+
+// checkApplyOutput refuses an --output that cannot be what the inputs
+// need: standard output, a .wav name for several inputs (which would
+// become a folder of that name), or an existing file where a folder is
+// needed.
+func checkApplyOutput(out string, inputs []string) error {
+	if out == "-" {
+		return usagef("--output -: apply writes WAV files, not standard output; give an output folder, or a .wav file name for one input")
+	}
+	if isDir(out) {
+		return nil
+	}
+	oneFile := len(inputs) == 1 && isWAVFile(inputs[0]) && !strings.ContainsAny(inputs[0], "*?[")
+	if !oneFile && isWAVName(out) {
+		return usagef("--output %s names a file, but these inputs need an output folder (a file name takes exactly one input file); give a folder, for example --output %s", out, strings.TrimSuffix(out, filepath.Ext(out)))
+	}
+	if st, err := os.Stat(out); err == nil && !st.IsDir() && !oneFile {
+		return usagef("--output %s is an existing file, but these inputs need an output folder; give a folder", out)
+	}
+	return nil
+}
+
+// isWAVName says whether a path's extension is one apply reads and writes.
+func isWAVName(p string) bool {
+	switch strings.ToLower(filepath.Ext(p)) {
+	case ".wav", ".bwf", ".rf64":
+		return true
+	}
+	return false
 }
 
 func isDir(p string) bool {

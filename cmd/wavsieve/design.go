@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -35,6 +34,14 @@ Bessel as --bessel-norm says. Tolerance form: --passband, --stopband,
 passband edges are then met exactly, with the margin at the stopband.
 A bandpass or bandstop of order N has 2N poles.
 
+--weighting CURVE adds a standard weighting after the other stages (A, C,
+Z of IEC 61672-1; Wb ... Wm of ISO 8041-1), alone or chained. For it the
+report gives its deviation from the analog definition and from the
+standard's table, and the class it meets and up to which frequency;
+--plot draws it inside the standard's tolerance band. A weighted level
+from a file is not a sound level meter's reading: the microphone and its
+calibration are unknown to wavsieve ('wavsieve help weighting').
+
 The report gives each stage's family, response, order and sections, the
 designed response at each edge against the spec with its margin, the
 -3 dB points, the passband group delay, the largest pole radius and the
@@ -48,6 +55,9 @@ Examples:
   # the smallest elliptic low-pass with 0.1 dB ripple to 3 kHz and 80 dB from 3.4 kHz
   wavsieve design --family elliptic --response lowpass --passband 3000 --stopband 3400 \
       --ripple 0.1 --attenuation 80 --rate-of field.wav --plot design.svg
+
+  # A-weighting at 44.1 kHz, with its class 1 check and plot
+  wavsieve design --weighting A --rate 44100 --plot a-weighting.svg
 
   # a spec file with a rumble high-pass and hum notches, as JSON
   wavsieve design --spec samples/specs/rumble-and-hum.json --rate 44100 --json
@@ -78,6 +88,9 @@ type stageJSON struct {
 	NotchHz   []float64    `json:"notch_hz,omitempty"`
 	Checks    []checkJSON  `json:"checks"`
 	Spec      design.Stage `json:"spec"`
+
+	Weighting *weightingJSON `json:"weighting,omitempty"`
+	Mask      []maskJSON     `json:"mask,omitempty"`
 }
 
 type checkJSON struct {
@@ -140,7 +153,10 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	f, err := design.Design(spec, *rate)
 	if err != nil {
-		return report(stderr, "design", err, designHint(err))
+		return report(stderr, "design", sf.valueError(err), designHint(err))
+	}
+	for _, w := range f.Warnings() {
+		fmt.Fprintf(stderr, "wavsieve design: warning: %s\n", w)
 	}
 	if *plot != "" {
 		if err := writePlot(*plot, f); err != nil {
@@ -149,9 +165,7 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	res := designDocument(f, source)
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(res); err != nil {
+		if err := writeJSON(stdout, res, true); err != nil {
 			return report(stderr, "design", err, "")
 		}
 		return exitOK
@@ -252,6 +266,7 @@ func designDocument(f *design.Filter, source string) designResult {
 			}
 			sj.Checks = append(sj.Checks, cj)
 		}
+		sj.Weighting, sj.Mask = weightingDocument(f, st)
 		res.Stages = append(res.Stages, sj)
 	}
 	lo, hi := f.PassbandGroupDelay()
@@ -285,6 +300,9 @@ func printDesign(w io.Writer, f *design.Filter, res designResult) {
 			what += " " + st.Response
 		}
 		switch st.Form {
+		case design.FormStandard:
+			printWeighting(w, f, i, st)
+			continue
 		case design.FormTolerance:
 			fmt.Fprintf(w, "\nStage %d: %s, order %d (the minimum for the tolerances), %d sections, %d poles\n", i+1, what, st.Order, len(st.Sections), len(st.ZPK.Poles))
 			fmt.Fprintf(w, "  the %s edges are met exactly; the margin is at the stopband\n", st.ExactEdge)

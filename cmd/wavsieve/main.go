@@ -11,6 +11,8 @@ import (
 	"io"
 	"os"
 	"strings"
+
+	"github.com/wavsieve/wavsieve/process/buildinfo"
 )
 
 func main() {
@@ -51,9 +53,12 @@ Usage:
 
 Commands:
 %s
-Run 'wavsieve <command> --help' for a command's flags and examples.
+Run 'wavsieve <command> --help' for a command's flags and examples, and
+'wavsieve help <topic>' for the spec-file keys (spec), the JSON documents
+(json), the exit codes (exit-codes) and the standard weightings
+(weighting). 'wavsieve --version' prints the version.
 
-Exit codes: 0 done, 1 failed, 2 usage error.
+Exit codes: 0 done, 1 failed, 2 usage error (see 'wavsieve help exit-codes').
 `
 
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
@@ -62,8 +67,13 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return exitUsage
 	}
 	switch args[0] {
-	case "-h", "--help", "help":
+	case "-h", "--help":
 		fmt.Fprintf(stdout, topUsage, commandList())
+		return exitOK
+	case "help":
+		return runHelp(args[1:], stdin, stdout, stderr)
+	case "--version", "version":
+		fmt.Fprintf(stdout, "wavsieve %s\n", buildinfo.Version())
 		return exitOK
 	}
 	for _, c := range commands() {

@@ -79,8 +79,11 @@ func (pr *progress) hooks() process.Hooks {
 		},
 		Done: func(i int, r process.FileResult) {
 			if !pr.enabled {
-				if r.Status == process.StatusDone {
+				switch r.Status {
+				case process.StatusDone:
 					fmt.Fprintf(pr.w, "done %s -> %s (%.2f s)\n", r.Input, r.Output, r.Seconds)
+				case process.StatusSkipped:
+					fmt.Fprintf(pr.w, "skipped %s -> %s: %s\n", r.Input, r.Output, r.Error)
 				}
 				return
 			}

@@ -7,10 +7,12 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
 
 	"github.com/spf13/pflag"
 	htmlreport "github.com/wavsieve/wavsieve/analyze/report"
 	"github.com/wavsieve/wavsieve/process/runrecord"
+	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
 const reportHelp = `Make a self-contained HTML report of an apply run or a survey.
@@ -40,7 +42,7 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs := pflag.NewFlagSet("report", pflag.ContinueOnError)
 	fs.SetOutput(io.Discard)
 	from := fs.StringArray("from", nil, "the apply manifest or survey `document` (JSON); repeat it to gather several runs in one report")
-	output := fs.StringP("output", "o", "", "the HTML `file` to write")
+	output := fs.StringP("output", "o", "", "the HTML `file` to write (- for standard output)")
 	maxS := fs.Float64("max-seconds", 120, "analyse at most this many `seconds` of each file")
 	help := fs.BoolP("help", "h", false, "show this help")
 	if err := fs.Parse(args); err != nil {
@@ -56,6 +58,9 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	if fs.NArg() > 0 {
 		return report(stderr, "report", usagef("unexpected argument %q", fs.Arg(0)), "")
+	}
+	if isDir(*output) {
+		return report(stderr, "report", usagef("--output %s is a folder; give the report's file name, for example --output %s", *output, filepath.Join(*output, "report.html")), "")
 	}
 	opt := htmlreport.Options{MaxSeconds: *maxS}
 	var r htmlreport.Report
@@ -75,6 +80,12 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	var b bytes.Buffer
 	if err := htmlreport.Write(&b, r); err != nil {
 		return report(stderr, "report", err, "")
+	}
+	if *output == "-" {
+		if _, err := stdout.Write(b.Bytes()); err != nil {
+			return report(stderr, "report", err, "")
+		}
+		return exitOK
 	}
 	if err := writeFileAtomic(*output, b.Bytes()); err != nil {
 		return report(stderr, "report", err, "")
@@ -99,7 +110,7 @@ func buildReport(name string, opt htmlreport.Options) (htmlreport.Report, error)
 	}
 	data, rerr := os.ReadFile(name)
 	if rerr != nil {
-		return htmlreport.Report{}, rerr
+		return htmlreport.Report{}, wavio.PathError(name, rerr)
 	}
 	var probe struct {
 		Files []json.RawMessage `json:"files"`

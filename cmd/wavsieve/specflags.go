@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"os"
 	"strconv"
@@ -8,6 +9,7 @@ import (
 
 	"github.com/spf13/pflag"
 	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
 // specFlags are the flags that describe a filter on the command line, for
@@ -30,6 +32,7 @@ type specFlags struct {
 	q           float64
 	oddOnly     bool
 	zeroPhase   bool
+	weighting   string
 	track       bool
 }
 
@@ -45,16 +48,29 @@ func (s *specFlags) register(fs *pflag.FlagSet) {
 	fs.Float64Var(&s.attenuation, "attenuation", 0, "smallest stopband attenuation in `dB`")
 	fs.StringVar(&s.besselNorm, "bessel-norm", "", "Bessel normalisation: phase (default), delay or magnitude")
 	fs.Float64Var(&s.fundamental, "hum", 0, "notch: mains fundamental in `Hz` (for example 50 or 60)")
-	fs.IntVar(&s.harmonics, "harmonics", 0, "notch: highest harmonic `number` to notch (0: all below Nyquist)")
+	fs.IntVar(&s.harmonics, "harmonics", 0, "notch: highest harmonic `number` to notch (default: every harmonic below 1000 Hz)")
 	fs.Float64Var(&s.bandwidth, "notch-width", 0, "notch: -3 dB width of each notch in `Hz`")
 	fs.Float64Var(&s.q, "notch-q", 0, "notch: constant quality factor `Q` (width = centre / Q) instead of --notch-width")
 	fs.BoolVar(&s.oddOnly, "odd-only", false, "notch: odd harmonics only")
+	fs.StringVar(&s.weighting, "weighting", "", "add a standard weighting `curve` after the other stages: "+strings.Join(design.WeightingCurves(), ", ")+" (IEC 61672-1, ISO 8041-1); weighted levels from a file are no sound level meter or vibration meter reading")
 	fs.BoolVar(&s.zeroPhase, "zero-phase", false, "run forward and backward: the squared response meets the spec")
 	fs.BoolVar(&s.track, "track", false, "notch: the notches follow the hum measured in each file as it drifts (tracking: true)")
 }
 
-// spec builds the spec from the file or from the flags.
+// spec builds the spec from the file or from the flags, then adds the
+// --weighting stage at the end of the chain.
 func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
+	sp, err := s.baseSpec(fs)
+	if err != nil || s.weighting == "" {
+		return sp, err
+	}
+	sp.Stages = append(sp.Stages, design.Stage{Family: design.Weighting, Curve: s.weighting})
+	return sp, nil
+}
+
+// baseSpec builds the spec from the file or from the flags, without
+// --weighting; with --weighting alone it is an empty chain.
+func (s *specFlags) baseSpec(fs *pflag.FlagSet) (design.Spec, error) {
 	inline := []string{"family", "response", "order", "cutoff", "passband", "stopband", "ripple", "attenuation", "bessel-norm", "hum", "harmonics", "notch-width", "notch-q", "odd-only"}
 	var set []string
 	for _, n := range inline {
@@ -68,9 +84,13 @@ func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
 		}
 		b, err := os.ReadFile(s.file)
 		if err != nil {
-			return design.Spec{}, err
+			return design.Spec{}, wavio.PathError(s.file, err)
 		}
 		sp, err := design.ParseSpec(b)
+		var se *design.SpecError
+		if errors.As(err, &se) {
+			return design.Spec{}, fmt.Errorf("%s:%d:%d: %s", s.file, se.Line, se.Column, se.Msg)
+		}
 		if err != nil {
 			return design.Spec{}, fmt.Errorf("%s: %w", s.file, err)
 		}
@@ -92,7 +112,22 @@ func (s *specFlags) spec(fs *pflag.FlagSet) (design.Spec, error) {
 		return sp, nil
 	}
 	if s.family == "" {
-		return design.Spec{}, usagef("no filter given: use --spec FILE, or --family with its flags")
+		if s.weighting != "" {
+			var other []string
+			for _, n := range inline {
+				if fs.Changed(n) {
+					other = append(other, "--"+n)
+				}
+			}
+			if len(other) > 0 {
+				return design.Spec{}, usagef("%s need --family (or use --spec FILE)", strings.Join(other, ", "))
+			}
+			return design.Spec{ZeroPhase: s.zeroPhase}, nil
+		}
+		return design.Spec{}, usagef("no filter given: use --spec FILE, --family with its flags, or --weighting CURVE")
+	}
+	if s.cutoff != "" && s.order == 0 && s.family != design.Notch {
+		return design.Spec{}, usagef("--cutoff needs --order N, the prototype order (for example --order 4); or, for the minimum order, give --passband, --stopband, --ripple and --attenuation instead of --cutoff")
 	}
 	st := design.Stage{
 		Family: s.family, Response: s.response, Order: s.order,
@@ -130,4 +165,29 @@ func parseEdges(flag, v string) (design.Edges, error) {
 		e[i] = f
 	}
 	return e, nil
+}
+
+// specKeyFlags maps the spec keys that have a flag to it.
+var specKeyFlags = map[string]string{
+	"order": "--order", "cutoff_hz": "--cutoff", "passband_hz": "--passband", "stopband_hz": "--stopband",
+	"ripple_db": "--ripple", "attenuation_db": "--attenuation", "fundamental_hz": "--hum",
+	"harmonics": "--harmonics", "bandwidth_hz": "--notch-width", "q": "--notch-q",
+}
+
+// valueError restates a design error about one value in the words the
+// user gave it in: for a spec given by flags, as a usage error naming
+// the flag (exit 2); for a spec file, naming the file and the key. Other
+// errors pass unchanged.
+func (s *specFlags) valueError(err error) error {
+	ve, ok := design.ValueOf(err)
+	if !ok {
+		return err
+	}
+	if s.file != "" {
+		return fmt.Errorf("%s: %s value %s %s", s.file, ve.Key, ve.Quantity(), ve.Detail)
+	}
+	if f, ok := specKeyFlags[ve.Key]; ok {
+		return usagef("%s %s %s", f, ve.Quantity(), ve.Detail)
+	}
+	return err
 }

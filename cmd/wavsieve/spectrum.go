@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/csv"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -83,7 +82,7 @@ func runSpectrum(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs := pflag.NewFlagSet("spectrum", pflag.ContinueOnError)
 	fs.SetOutput(io.Discard)
 	segment := fs.Int("segment", 8192, "segment length in `samples`")
-	overlap := fs.Int("overlap", -1, "`samples` shared by neighbouring segments (default: half the segment)")
+	overlap := fs.Int("overlap", 0, "`samples` shared by neighbouring segments, 0 or more (default: half the segment)")
 	window := fs.String("window", "hann", "window `name`: hann, hamming, blackman-harris, flat-top, rectangular or kaiser:BETA")
 	scaling := fs.String("scaling", "density", "`density` (FS^2/Hz) or spectrum (FS^2)")
 	detrend := fs.String("detrend", "mean", "remove `none`, mean or linear trend from each segment")
@@ -105,8 +104,10 @@ func runSpectrum(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "spectrum", usagef("give one WAV file, or two to compare (got %d)", fs.NArg()), "")
 	}
 	opt := analyze.Options{Segment: *segment, Overlap: *overlap}
-	if *overlap < 0 {
+	if !fs.Changed("overlap") {
 		opt.Overlap = *segment / 2
+	} else if *overlap < 0 {
+		return report(stderr, "spectrum", usagef("--overlap %d: give 0 or more samples, less than the segment; leave it out for half the segment", *overlap), "")
 	}
 	var err error
 	if opt.Window, err = analyze.ParseWindow(*window); err != nil {
@@ -154,8 +155,7 @@ func runSpectrum(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		if len(docs) == 2 {
 			doc.Compare = docs[1]
 		}
-		enc := json.NewEncoder(stdout)
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, false); err != nil {
 			return report(stderr, "spectrum", err, "")
 		}
 		return exitOK

@@ -197,9 +197,7 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "survey", err, "")
 		}
 	} else {
@@ -223,7 +221,7 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 func expandInputs(arg string, recursive bool) ([]string, error) {
 	items, err := process.Plan([]string{arg}, process.PlanOptions{OutputDir: filepath.Join(os.DevNull, "survey"), Recursive: recursive})
 	if errors.Is(err, fs.ErrNotExist) {
-		return nil, fmt.Errorf("%s: no such file or folder; check the path", arg)
+		return nil, wavio.PathError(arg, err)
 	}
 	if err != nil {
 		msg := strings.TrimPrefix(err.Error(), "process: ")
@@ -404,6 +402,9 @@ func printSurvey(w io.Writer, f surveyFile) {
 	}
 	for _, r := range f.Rumble {
 		fmt.Fprintf(w, "  rumble, channel %d: %.1f dBFS below %.0f Hz, %.1f dB over the 200-2000 Hz floor", r.Channel, r.LevelDB, r.BelowHz, r.ExcessDB)
+		if r.ToneHz > 0 {
+			fmt.Fprintf(w, "; a steady %.1f Hz tone at %.1f dBFS", r.ToneHz, r.ToneDBFS)
+		}
 		if r.Present {
 			fmt.Fprintf(w, "; high-pass at %g Hz", r.CornerHz)
 		}

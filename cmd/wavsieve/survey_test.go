@@ -235,3 +235,34 @@ func TestSurveyDemoSampleCLI(t *testing.T) {
 		t.Errorf("fundamental %.4f Hz, README mean 49.99", f)
 	}
 }
+
+// TestSurveyReportsSubAudioTone: a 3 Hz tone of power -16 dBFS (amplitude
+// sqrt(2) 10^(-16/20), a sine's power being A^2/2) over a quiet white floor
+// is reported with its level, and a high-pass suggested for it.
+func TestSurveyReportsSubAudioTone(t *testing.T) {
+	name := filepath.Join(t.TempDir(), "tone3.wav")
+	w, err := wavio.Create(name, wavio.WriterOptions{Format: wavio.Format{SampleRate: 8000, Channels: 1, Bits: 32, Encoding: wavio.Float}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(3, 3))
+	x := make([]float64, 8*8000)
+	for i := range x {
+		x[i] = math.Sqrt2*math.Pow(10, -16.0/20)*math.Sin(2*math.Pi*3*float64(i)/8000) + 0.003*rng.NormFloat64()
+	}
+	if err := w.WriteFrames(x); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCmd(t, "survey", name)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"a steady 3.0 Hz tone at -16.0 dBFS", "high-pass at 10 Hz", `"cutoff_hz":[10]`} {
+		if !strings.Contains(out, want) {
+			t.Errorf("survey output lacks %q:\n%s", want, out)
+		}
+	}
+}

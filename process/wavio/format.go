@@ -80,7 +80,8 @@ type UnsupportedError string
 func (e UnsupportedError) Error() string { return "wavio: unsupported " + string(e) }
 
 // NonFiniteError reports a NaN or infinite sample at a position counted from
-// the first frame of the data chunk.
+// the first frame of the data chunk. Channel counts from 0; the message
+// counts channels from 1, as every message of wavsieve does.
 type NonFiniteError struct {
 	Frame   int64
 	Channel int
@@ -88,7 +89,7 @@ type NonFiniteError struct {
 }
 
 func (e *NonFiniteError) Error() string {
-	return fmt.Sprintf("wavio: non-finite sample %v at frame %d, channel %d", e.Value, e.Frame, e.Channel)
+	return fmt.Sprintf("wavio: non-finite sample %v at frame %d, channel %d (counted from 1)", e.Value, e.Frame, e.Channel+1)
 }
 
 // errTruncated wraps io.ErrUnexpectedEOF for a header that ends early.

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"strings"
 )
@@ -73,6 +74,9 @@ type Reader struct {
 // closes the file.
 func Open(name string, opts *ReaderOptions) (*Reader, error) {
 	f, err := os.Open(name)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil, &NotFoundError{Path: name}
+	}
 	if err != nil {
 		return nil, err
 	}

@@ -1,0 +1,344 @@
+package verify
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"sort"
+
+	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/wavio"
+)
+
+// Files reads a filtering run from its input and output files, streaming
+// both, and judges it against spec designed at their rate. The formats of
+// the files set the floors. A run too short for a check gives that check
+// unmeasurable, not an error.
+func Files(ctx context.Context, spec design.Spec, in, out string, o Options) (*Result, error) {
+	ri, err := wavio.Open(in, nil)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", in, err)
+	}
+	defer ri.Close()
+	ro, err := wavio.Open(out, nil)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", out, err)
+	}
+	defer ro.Close()
+	fi, fo := ri.Format(), ro.Format()
+	switch {
+	case fi.SampleRate != fo.SampleRate:
+		return nil, fmt.Errorf("verify: %w: %s (%d Hz) and %s (%d Hz) differ in sample rate", ErrMismatch, in, fi.SampleRate, out, fo.SampleRate)
+	case fi.Channels != fo.Channels:
+		return nil, fmt.Errorf("verify: %w: %s (%d channels) and %s (%d channels) differ in channel count", ErrMismatch, in, fi.Channels, out, fo.Channels)
+	case ri.Frames() < 0:
+		return nil, fmt.Errorf("verify: %w: %s: the header does not give the length", ErrUnknownLength, in)
+	case ri.Frames() != ro.Frames():
+		return nil, fmt.Errorf("verify: %w: %s (%d frames) and %s (%d frames) differ in length", ErrMismatch, in, ri.Frames(), out, ro.Frames())
+	}
+	f, err := process.DesignFor(spec, fi.SampleRate, in)
+	if err != nil {
+		return nil, err
+	}
+	o.In, o.Out = fi, fo
+	s, err := NewSession(f, nil, fi.Channels, ri.Frames(), o)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", in, err)
+	}
+	if err := feedFiles(ctx, s, ri, ro, in, out); err != nil {
+		return nil, err
+	}
+	return s.Result(in, out, "recording"), nil
+}
+
+// feedFiles streams two open files through a session.
+func feedFiles(ctx context.Context, s *Session, ri, ro *wavio.Reader, in, out string) error {
+	const block = 1 << 15
+	nc := ri.Format().Channels
+	bx, by := make([]float64, block*nc), make([]float64, block*nc)
+	for done := int64(0); done < s.frames-s.skip; {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		n, err1 := readFull(ri, bx)
+		m, err2 := readFull(ro, by)
+		if n != m {
+			return fmt.Errorf("verify: %w: %s and %s: reading stopped at different frames (%d, %d)", ErrMismatch, in, out, done+int64(n), done+int64(m))
+		}
+		if err := s.Feed(bx[:n*nc], by[:n*nc]); err != nil {
+			return err
+		}
+		done += int64(n)
+		if err1 != nil || err2 != nil || n == 0 {
+			for _, e := range []error{err1, err2} {
+				if e != nil && !errors.Is(e, io.EOF) {
+					return fmt.Errorf("%s / %s: %w", in, out, e)
+				}
+			}
+			break
+		}
+	}
+	return nil
+}
+
+// readFull reads until buf is full or the data ends.
+func readFull(r *wavio.Reader, buf []float64) (int, error) {
+	nc := r.Format().Channels
+	total := 0
+	for total*nc < len(buf) {
+		n, err := r.ReadFrames(buf[total*nc:])
+		total += n
+		if err != nil {
+			return total, err
+		}
+		if n == 0 {
+			break
+		}
+	}
+	return total, nil
+}
+
+// Chain is the processing a probe goes through: what apply would do to a
+// file of format In.
+type Chain struct {
+	Spec design.Spec
+	// In is the probe's input format (rate, channels, sample format).
+	In wavio.Format
+	// Encoding and Bits are the output sample format; Bits 0 keeps In's.
+	Encoding   wavio.Encoding
+	Bits       int
+	NoDither   bool
+	DitherSeed uint64
+	// Only lists the channels filtered (counted from 0), as apply
+	// --channels; nil filters all.
+	Only []int
+	// TempDir is where the probe files go ("" for the system's).
+	TempDir string
+	// Name stands for the probe in messages and results.
+	Name string
+}
+
+func (ch Chain) out() wavio.Format {
+	if ch.Bits == 0 {
+		return ch.In
+	}
+	return ch.In.WithSample(ch.Encoding, ch.Bits)
+}
+
+// Probe levels: a tone of amplitude toneAmp (-6 dBFS peak); white Gaussian
+// noise at noiseRMS (-20 dBFS), whose peaks (about 5 sigma over a minute
+// of samples) stay 6 dB below full scale.
+const (
+	toneAmp  = 0.5
+	noiseRMS = 0.1
+	// toneSegments half-overlapped segments are read from each tone;
+	// maxProbeFrames bounds any probe file.
+	toneSegments   = 16
+	noiseSegments  = 64
+	maxProbeFrames = 1 << 24
+)
+
+// ToneProbe measures the chain with a steady tone at each check frequency,
+// one tone at a time (a tone beside a deep notch would otherwise leak into
+// its reading), each filtered exactly as apply would filter a file of the
+// chain's format (a temporary file through process.FilterFile: the design
+// at the rate, zero-phase padding, output encoding and dither), then read
+// between the transients. Checks whose tone would need a file longer than
+// 2^24 frames come out unmeasurable.
+func ToneProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
+	f, err := process.DesignFor(ch.Spec, ch.In.SampleRate, ch.Name)
+	if err != nil {
+		return nil, err
+	}
+	if err := o.validate(ch.In.Channels); err != nil {
+		return nil, err
+	}
+	dir, err := os.MkdirTemp(ch.TempDir, "wavsieve-probe-")
+	if err != nil {
+		return nil, fmt.Errorf("verify: probe: %w", err)
+	}
+	defer os.RemoveAll(dir)
+	o.Tone = true
+	o.In, o.Out = ch.In, ch.out()
+	res := &Result{Input: ch.Name, Method: "tone probe", SampleRate: ch.In.SampleRate, ZeroPhase: f.ZeroPhase, Window: window.String(),
+		ConfidenceLevel: o.level(), Checks: []Check{}, Filter: f}
+	skip := int64(f.DecaySamples(toneDecayDB, 0))
+	res.SkippedFrames = skip
+	pin, pout := filepath.Join(dir, "tone-in.wav"), filepath.Join(dir, "tone-out.wav")
+	for _, p := range Points(f) {
+		seg := toneSegment(f.SampleRate, p.FrequencyHz)
+		if o.Segment != 0 {
+			seg = o.Segment
+		}
+		frames := 2*skip + int64(seg)*(toneSegments+1)/2
+		s, err := NewSession(f, []Point{p}, ch.In.Channels, min(frames, maxProbeFrames), o)
+		if err != nil {
+			return nil, err
+		}
+		if frames <= maxProbeFrames {
+			if err := writeTone(pin, ch.In, frames, p.FrequencyHz, ch.DitherSeed); err != nil {
+				return nil, err
+			}
+			job := process.FileJob{Input: pin, Output: pout, Spec: ch.Spec, Encoding: ch.Encoding, Bits: ch.Bits, NoDither: ch.NoDither,
+				DitherSeed: ch.DitherSeed, Only: ch.Only, TempDir: dir}
+			fr, err := process.FilterFile(ctx, job)
+			if err != nil {
+				return nil, fmt.Errorf("verify: probe: %w", err)
+			}
+			if n := sum(fr.Clipped); n > 0 {
+				return nil, fmt.Errorf("verify: %w: %d samples of the %.6g Hz tone clipped at full scale; the filter's gain is too high for a -6 dBFS probe", ErrProbeClipped, n, p.FrequencyHz)
+			}
+			if err := feedPair(ctx, s, pin, pout); err != nil {
+				return nil, err
+			}
+		}
+		r := s.Result(ch.Name, "", "tone probe")
+		for i := range r.Checks {
+			if frames > maxProbeFrames {
+				r.Checks[i].Verdict = Unmeasurable
+				r.Checks[i].Reason = fmt.Sprintf("the tone would need %d frames to settle and be read, more than the probe's %d", frames, maxProbeFrames)
+			}
+		}
+		res.Channels = r.Channels
+		res.Frames = max(res.Frames, frames)
+		res.Checks = append(res.Checks, r.Checks...)
+	}
+	if res.Channels == nil {
+		for _, c := range NewSessionChannels(ch.In.Channels, o.Channels) {
+			res.Channels = append(res.Channels, c+1)
+		}
+	}
+	sort.SliceStable(res.Checks, func(i, j int) bool { return res.Checks[i].Channel < res.Checks[j].Channel })
+	res.Finish()
+	return res, nil
+}
+
+// NewSessionChannels lists the channels a session checks (counted from 0).
+func NewSessionChannels(channels int, only []int) []int {
+	if len(only) > 0 {
+		return only
+	}
+	c := make([]int, channels)
+	for i := range c {
+		c[i] = i
+	}
+	return c
+}
+
+// toneSegment is the reading window of a tone: long enough (at least 4096)
+// to keep the tone's images at -f and fs - f outside its main lobe.
+func toneSegment(fs, hz float64) int {
+	room := math.Min(hz, fs/2-hz)
+	seg := 4096
+	for seg < MaxSegment && lobeBins*fs/float64(seg) > room/2 {
+		seg *= 2
+	}
+	return seg
+}
+
+// NoiseProbe measures the chain with white noise, long enough for the
+// longest segment the checks need (at most 2^24 frames).
+func NoiseProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
+	f, err := process.DesignFor(ch.Spec, ch.In.SampleRate, ch.Name)
+	if err != nil {
+		return nil, err
+	}
+	// Plan as for an endless run, to learn the longest segment wanted.
+	s, err := NewSession(f, nil, ch.In.Channels, math.MaxInt64/4, o)
+	if err != nil {
+		return nil, err
+	}
+	seg := 0
+	for _, g := range s.groups {
+		seg = max(seg, g.seg)
+	}
+	frames := min(2*s.skip+int64(max(seg, MinSegment))*(noiseSegments+1)/2, maxProbeFrames)
+	dir, err := os.MkdirTemp(ch.TempDir, "wavsieve-probe-")
+	if err != nil {
+		return nil, fmt.Errorf("verify: probe: %w", err)
+	}
+	defer os.RemoveAll(dir)
+	pin, pout := filepath.Join(dir, "noise-in.wav"), filepath.Join(dir, "noise-out.wav")
+	if err := writeNoise(pin, ch.In, frames, ch.DitherSeed); err != nil {
+		return nil, err
+	}
+	job := process.FileJob{Input: pin, Output: pout, Spec: ch.Spec, Encoding: ch.Encoding, Bits: ch.Bits, NoDither: ch.NoDither, DitherSeed: ch.DitherSeed, Only: ch.Only, TempDir: dir}
+	fr, err := process.FilterFile(ctx, job)
+	if err != nil {
+		return nil, fmt.Errorf("verify: probe: %w", err)
+	}
+	if n := sum(fr.Clipped); n > 0 {
+		return nil, fmt.Errorf("verify: %w: %d samples clipped at full scale in the filtered noise; the filter's gain is too high for a -20 dBFS probe", ErrProbeClipped, n)
+	}
+	r, err := Files(ctx, ch.Spec, pin, pout, o)
+	if err != nil {
+		return nil, err
+	}
+	r.Input, r.Output, r.Method = ch.Name, "", "noise probe"
+	return r, nil
+}
+
+// feedPair streams a probe's input and output files through s.
+func feedPair(ctx context.Context, s *Session, in, out string) error {
+	ri, err := wavio.Open(in, nil)
+	if err != nil {
+		return fmt.Errorf("verify: probe: %w", err)
+	}
+	defer ri.Close()
+	ro, err := wavio.Open(out, nil)
+	if err != nil {
+		return fmt.Errorf("verify: probe: %w", err)
+	}
+	defer ro.Close()
+	return feedFiles(ctx, s, ri, ro, in, out)
+}
+
+// writeTone writes frames of a sine of amplitude toneAmp at hz on every
+// channel, in format f.
+func writeTone(name string, f wavio.Format, frames int64, hz float64, seed uint64) error {
+	w := 2 * math.Pi * hz / float64(f.SampleRate)
+	return writeSignal(name, f, frames, seed, func(t int64, _ int) float64 { return toneAmp * math.Sin(w*float64(t)) })
+}
+
+// writeNoise writes frames of white Gaussian noise at noiseRMS, seeded so
+// that a probe can be repeated.
+func writeNoise(name string, f wavio.Format, frames int64, seed uint64) error {
+	rng := rand.New(rand.NewPCG(seed, 0x70726f6265))
+	return writeSignal(name, f, frames, seed, func(int64, int) float64 { return noiseRMS * rng.NormFloat64() })
+}
+
+func writeSignal(name string, f wavio.Format, frames int64, seed uint64, v func(t int64, c int) float64) error {
+	f.ValidBits = 0
+	w, err := wavio.Create(name, wavio.WriterOptions{Format: f, DitherSeed: seed + 1})
+	if err != nil {
+		return fmt.Errorf("verify: probe: %w", err)
+	}
+	buf := make([]float64, 1<<14*f.Channels)
+	for done := int64(0); done < frames; {
+		n := min(int64(len(buf)/f.Channels), frames-done)
+		b := buf[:n*int64(f.Channels)]
+		for i := range b {
+			b[i] = v(done+int64(i/f.Channels), i%f.Channels)
+		}
+		if err := w.WriteFrames(b); err != nil {
+			w.Abort()
+			return fmt.Errorf("verify: probe: %w", err)
+		}
+		done += n
+	}
+	return w.Close()
+}
+
+func sum(v []int64) int64 {
+	var s int64
+	for _, x := range v {
+		s += x
+	}
+	return s
+}
