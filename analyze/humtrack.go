@@ -426,7 +426,7 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 	bl := int(math.Round(trackCoarseSeconds * t.rate))
 	hop := int(math.Round(trackCoarseHopSeconds * t.rate))
 	nfft := 1
-	for nfft < 8*bl {
+	for nfft < 4*bl {
 		nfft *= 2
 	}
 	fft := fourier.NewFFT(nfft)
@@ -496,8 +496,40 @@ func (t *Tracker) humAbove(cs *coarse, p []float64, f float64, k int, scratch []
 	if len(scratch) == 0 {
 		return peak, 0
 	}
-	slices.Sort(scratch)
-	return peak, scratch[len(scratch)/2]
+	return peak, selectKth(scratch, len(scratch)/2)
+}
+
+// selectKth returns the k-th smallest element of v (reordering v), by
+// Hoare's quickselect with the middle element as pivot: the median
+// without a full sort.
+func selectKth(v []float64, k int) float64 {
+	lo, hi := 0, len(v)-1
+	for lo < hi {
+		p := v[(lo+hi)/2]
+		i, j := lo, hi
+		for i <= j {
+			for v[i] < p {
+				i++
+			}
+			for v[j] > p {
+				j--
+			}
+			if i <= j {
+				v[i], v[j] = v[j], v[i]
+				i++
+				j--
+			}
+		}
+		switch {
+		case k <= j:
+			hi = j
+		case k >= i:
+			lo = i
+		default:
+			return v[k]
+		}
+	}
+	return v[k]
 }
 
 func (t *Tracker) track(chans []int) (*HumTrack, error) {

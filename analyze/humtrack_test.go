@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 )
 
@@ -182,5 +183,23 @@ func TestTrackerNoHum(t *testing.T) {
 	tk.Write(x)
 	if _, err := tk.Result(); !errors.Is(err, ErrNoHum) {
 		t.Errorf("white noise: got %v, want ErrNoHum", err)
+	}
+}
+
+func TestSelectKth(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 5))
+	for _, n := range []int{1, 2, 3, 10, 101, 1000} {
+		v := make([]float64, n)
+		for i := range v {
+			v[i] = float64(rng.IntN(20)) // with ties
+		}
+		s := append([]float64(nil), v...)
+		slices.Sort(s)
+		for _, k := range []int{0, n / 2, n - 1} {
+			w := append([]float64(nil), v...)
+			if got := selectKth(w, k); got != s[k] {
+				t.Errorf("n %d k %d: %g, want %g", n, k, got, s[k])
+			}
+		}
 	}
 }

@@ -37,6 +37,8 @@ func BenchmarkNotchComb(b *testing.B) {
 			spec := design.Spec{Stages: []design.Stage{{Family: design.Notch, FundamentalHz: 50, Harmonics: 9, BandwidthHz: 0.5, Tracking: track}}, ZeroPhase: zp}
 			b.Run(name, func(b *testing.B) {
 				b.SetBytes(int64(len(s.Hum)) * 4)
+				cpu0 := cpuSeconds()
+				defer func() { b.ReportMetric((cpuSeconds()-cpu0)/float64(b.N), "cpu-s/op") }()
 				for i := 0; i < b.N; i++ {
 					job := process.FileJob{Input: in, Output: filepath.Join(dir, "out.wav"), Spec: spec, NewTracker: humscene.Tracker}
 					if _, err := process.FilterFile(context.Background(), job); err != nil {

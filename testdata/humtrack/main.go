@@ -7,7 +7,7 @@
 // survey's suggestion, and 0.5 Hz notches at the mean fundamental), and
 // prints the twin-polarity figures side by side.
 //
-//	go run ./testdata/humtrack [-seconds 60] [-rate 48000] [-wav DIR]
+//	go run ./testdata/humtrack [-seconds 60] [-rate 48000] [-wav DIR] [-measure=false]
 //
 // With -wav it also writes each scene (hum + wanted sound) as a 32-bit
 // float WAV file into DIR, for trying the command line on it.
@@ -31,8 +31,9 @@ func main() {
 	secs := flag.Float64("seconds", 60, "length of each recording")
 	rate := flag.Float64("rate", 48000, "sample rate in Hz")
 	wavDir := flag.String("wav", "", "also write the scenes as WAV files into this `folder`")
+	measure := flag.Bool("measure", true, "filter and measure (false: only write the WAV files)")
 	flag.Parse()
-	if err := run(*secs, *rate, *wavDir); err != nil {
+	if err := run(*secs, *rate, *wavDir, *measure); err != nil {
 		fmt.Fprintln(os.Stderr, "humtrack:", err)
 		os.Exit(1)
 	}
@@ -43,7 +44,7 @@ type filterCase struct {
 	spec design.Spec
 }
 
-func run(secs, rate float64, wavDir string) error {
+func run(secs, rate float64, wavDir string, measure bool) error {
 	dir, err := os.MkdirTemp("", "humtrack-")
 	if err != nil {
 		return err
@@ -59,6 +60,9 @@ func run(secs, rate float64, wavDir string) error {
 			if err := writeFloat32(filepath.Join(wavDir, s.Name+".wav"), s.Mix(1), rate); err != nil {
 				return err
 			}
+		}
+		if !measure {
+			continue
 		}
 		cases := []filterCase{}
 		for _, zp := range []bool{false, true} {
