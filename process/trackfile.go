@@ -129,7 +129,11 @@ func trackedCascade(f *design.Filter, t *tracked, cfg Config) (*Cascade, *trackC
 	fund := d.Spec.FundamentalHz
 	var harm []float64
 	for _, c := range d.NotchHz {
-		harm = append(harm, c/fund)
+		h := c / fund
+		if r := math.Round(h); math.Abs(h-r) < 1e-9 {
+			h = r // whole harmonic numbers, as notchCentres made them
+		}
+		harm = append(harm, h)
 	}
 	// Each pass is down by 3/passes dB at the edges, as in the design.
 	g2 := 0.5

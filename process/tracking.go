@@ -78,6 +78,7 @@ type trackComb struct {
 	posF, posB int64
 	nyq        float64
 	k1, c1     []float64 // scratch, per notch
+	whole      bool      // harm is 1, 2, 3, ... (angle addition applies)
 }
 
 // newTrackComb returns the comb for notches at harmonics (multiples of
@@ -119,6 +120,10 @@ func newTrackComb(rate float64, cfg Config, tracks []FrequencyTrack, harmonics, 
 	for i := range t.st {
 		t.st[i] = make([]float64, 2*len(harmonics))
 	}
+	t.whole = true
+	for n, h := range harmonics {
+		t.whole = t.whole && h == float64(n+1)
+	}
 	t.k1 = make([]float64, len(harmonics))
 	t.c1 = make([]float64, len(harmonics))
 	return t, nil
@@ -148,8 +153,26 @@ func (t *trackComb) coefs(i int, f int64) {
 	}
 	mid := (float64(c*cell) + float64(t.cell-1)/2) / t.rate
 	f0 := t.tracks[i].At(mid)
+	w0 := 2 * math.Pi * f0 / t.rate
+	if t.whole {
+		// Whole harmonics 1, 2, 3, ... in order: cos and sin of k w0 by
+		// angle addition from one Sincos (the rounding grows by about one
+		// part in 1e16 per step).
+		s1, c1 := math.Sincos(w0)
+		c, s := c1, s1
+		for n := range t.harm {
+			if n > 0 {
+				c, s = c*c1-s*s1, s*c1+c*s1
+			}
+			if s <= 0 { // past Nyquist: hold just below it
+				c, s = math.Cos(math.Pi-1e-9), math.Sin(math.Pi-1e-9)
+			}
+			t.k1[n], t.c1[n] = -c, s
+		}
+		return
+	}
 	for n, h := range t.harm {
-		w := 2 * math.Pi * h * f0 / t.rate
+		w := h * w0
 		// Keep the centre inside (0, pi): a harmonic driven past Nyquist
 		// by the track stays just below it.
 		w = math.Min(math.Max(w, 1e-9), math.Pi-1e-9)
