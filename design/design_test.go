@@ -898,6 +898,7 @@ func TestFamilyTable(t *testing.T) {
 	all.FundamentalHz, all.Harmonics, all.BandwidthHz, all.Q, all.OddOnly = 1, 1, 1, 1, true
 	all.Tracking = true
 	all.Curve = "A"
+	all.Fraction, all.MidbandHz = 3, 1000
 	known := map[string]bool{}
 	for _, k := range setKeys(all) {
 		known[k] = true

@@ -125,6 +125,11 @@ var families = []family{
 		check: checkWeighting, build: buildWeighting,
 		cutoff: "none: the curve its standard defines",
 	},
+	{
+		name: BandFamily, keys: []string{"fraction", "midband_hz"},
+		check: checkBand, build: buildBand,
+		cutoff: "none: the band edges of IEC 61260-1 (-3 dB)",
+	},
 }
 
 // classicalKeys are the keys of the classical families (Butterworth,

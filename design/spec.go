@@ -84,6 +84,12 @@ type Stage struct {
 	// designed at it only for reports.
 	Tracking bool `json:"tracking,omitempty"`
 
+	// Fractional-octave band stages (family "band"): the band of the
+	// 1/Fraction-octave series of IEC 61260-1 whose nominal or exact
+	// mid-band frequency is MidbandHz.
+	Fraction  int     `json:"fraction,omitempty"`
+	MidbandHz float64 `json:"midband_hz,omitempty"`
+
 	// Weighting stages: the curve of a standard (IEC 61672-1 A, C, Z;
 	// ISO 8041-1 Wb ... Wm).
 	Curve string `json:"curve,omitempty"`

@@ -125,14 +125,17 @@ func lookupCurve(name string) (*curve, bool) {
 			goalLo: 10, goalHi: 16000, minRate: 2500, corners: []float64{iecF1, iecF4},
 		}, true
 	case "Z":
-		// IEC 61672-1:2013, 5.5.3: Z is 0 dB at every frequency.
+		// IEC 61672-1:2013: Z is 0 dB at every frequency (Table 3).
 		return &curve{name: "Z", standard: StandardIEC61672, iec: true, gain: 1, refHz: 1000, minRate: 2500}, true
 	}
 	p, ok := isoTable[name]
 	if !ok {
 		return nil, false
 	}
-	// ISO 8041-1:2017, 5.6 and Table 3 (as ISO 2631-1:1997, A.2):
+	// The cascade of ISO 8041-1:2017 (and ISO 2631-1:1997 Annex A), quoted
+	// from memory; the step's normalisation is the one whose Wk and Wd
+	// reproduce the weighting factors of ISO 2631-1 Table 3
+	// (TestISOWeightingTableValues):
 	//   band limits  H_h = s^2 / (s^2 + w1 s/Q1 + w1^2),
 	//                H_l = w2^2 / (s^2 + w2 s/Q1 + w2^2), Q1 = 1/sqrt 2,
 	//   transition   H_t = (1 + s/w3) w4^2 / (s^2 + w4 s/Q4 + w4^2),

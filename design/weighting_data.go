@@ -90,7 +90,7 @@ var iecTable = []iecRow{
 
 // iecExactHz is the exact frequency of a Table 3 row: nominal
 // frequencies are rounded from the base-10 series 1000 * 10^(n/10) Hz
-// (IEC 61672-1:2013, 5.5.9 and Table 3, note).
+// (IEC 61672-1:2013, Table 3 and the text before it).
 func iecExactHz(n int) float64 { return 1000 * math.Pow(10, float64(n)/10) }
 
 // isoParams are the parameters of one ISO 8041-1:2017 Table 3 weighting.

@@ -1,9 +1,11 @@
 package design
 
 import (
+	"encoding/json"
 	"errors"
 	"math"
 	"math/cmplx"
+	"os"
 	"testing"
 )
 
@@ -64,7 +66,7 @@ func TestIECTableAgainstAnnexE(t *testing.T) {
 		})
 	}
 	// The normalisations A1000 and C1000 make both 0 dB at 1 kHz
-	// (IEC 61672-1:2013, E.4.1) to within their printed digits.
+	// (IEC 61672-1:2013, Annex E) to within their printed digits.
 	for _, curve := range []string{"A", "C"} {
 		if v, _ := WeightingDB(curve, 1000); math.Abs(v) > 0.001 {
 			t.Errorf("%s analog at 1 kHz: %.5f dB", curve, v)
@@ -304,6 +306,56 @@ func TestClass1At20kHz(t *testing.T) {
 		// Below 39.9 kHz the row lies above Nyquist and cannot be met.
 		if w := designCurve(t, curve, 32000).Stages[0].Weighting; w.Class1UpToHz > 16000 {
 			t.Errorf("%s at 32 kHz: class 1 up to %g Hz", curve, w.Class1UpToHz)
+		}
+	}
+}
+
+// sciPyAnalogDB: the analog curves agree with the references to rounding.
+const sciPyAnalogDB = 1e-9
+
+// TestWeightingAgainstSciPy compares the analog definitions with
+// testdata/design/weighting_refs.json (gen_weighting_refs.py: Annex E
+// closed form for A and C with NumPy, scipy.signal.freqs for the ISO
+// cascades, scipy.signal.bilinear_zpk for a plain bilinear A at 48 kHz).
+func TestWeightingAgainstSciPy(t *testing.T) {
+	b, err := os.ReadFile("../testdata/design/weighting_refs.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	type curveRef struct {
+		Curve string    `json:"curve"`
+		Rate  float64   `json:"rate_hz"`
+		Hz    []float64 `json:"freqs_hz"`
+		DB    []float64 `json:"db"`
+	}
+	var refs struct {
+		IEC   []curveRef `json:"iec"`
+		ISO   []curveRef `json:"iso"`
+		Plain []curveRef `json:"plain_bilinear"`
+	}
+	if err := json.Unmarshal(b, &refs); err != nil {
+		t.Fatal(err)
+	}
+	if len(refs.IEC) != 2 || len(refs.ISO) != len(isoTable) || len(refs.Plain) != 1 {
+		t.Fatalf("references: %d IEC, %d ISO, %d plain", len(refs.IEC), len(refs.ISO), len(refs.Plain))
+	}
+	for _, r := range append(refs.IEC, refs.ISO...) {
+		t.Run(r.Curve, func(t *testing.T) {
+			for i, hz := range r.Hz {
+				got, ok := WeightingDB(r.Curve, hz)
+				if !ok || math.Abs(got-r.DB[i]) > sciPyAnalogDB*math.Max(1, math.Abs(r.DB[i])) {
+					t.Errorf("%.6g Hz: %.12f dB, reference %.12f dB", hz, got, r.DB[i])
+				}
+			}
+		})
+	}
+	p := refs.Plain[0]
+	c, _ := lookupCurve(p.Curve)
+	d := bilinearFactors(c.factors, p.Rate)
+	c.normalise(&d, p.Rate)
+	for i, hz := range p.Hz {
+		if got := db(zpkAt(d, 2*math.Pi*hz/p.Rate)); math.Abs(got-p.DB[i]) > 1e-7 {
+			t.Errorf("plain bilinear A at %.6g Hz: %.9f dB, SciPy %.9f dB", hz, got, p.DB[i])
 		}
 	}
 }

@@ -176,13 +176,21 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 			return nil, fmt.Errorf("process: %s and %s would both be written to %s; give them separate folders", prev, f.Path, out)
 		}
 		byOut[oa] = f.Path
-		if r, err := wavio.Open(f.Path, nil); err != nil {
+		it := Item{Input: f.Path, Output: out}
+		// Only regular files are opened: opening a pipe would wait for a
+		// writer that may never come.
+		if st, err := os.Stat(f.Path); err != nil {
+			f.Err = err
+		} else if !st.Mode().IsRegular() {
+			f.Err = fmt.Errorf("not a regular file (%s)", st.Mode().Type())
+			it.Refuse = fmt.Sprintf("%s: not a regular file but a %s; give WAV files", f.Path, kindOf(st.Mode()))
+		} else if r, err := wavio.Open(f.Path, nil); err != nil {
 			f.Err = err
 		} else {
 			f.Format, f.Frames = r.Format(), r.Frames()
 			r.Close()
 		}
-		it := Item{Input: f.Path, Output: out, Source: f}
+		it.Source = f
 		if !opt.Replace && f.Err == nil && completeOutput(f, out) {
 			it.Skip, it.Refuse = skipOrRefuse(f, out, opt)
 		}
@@ -214,6 +222,21 @@ func skipOrRefuse(f Input, out string, opt PlanOptions) (skip, refuse string) {
 	return "output exists, complete and made with the same design (give --replace to redo it)", ""
 }
 
+// kindOf names a file type that is not a regular file.
+func kindOf(m fs.FileMode) string {
+	switch {
+	case m&fs.ModeNamedPipe != 0:
+		return "named pipe (FIFO)"
+	case m&fs.ModeDevice != 0:
+		return "device"
+	case m&fs.ModeSocket != 0:
+		return "socket"
+	case m.IsDir():
+		return "folder"
+	}
+	return "special file"
+}
+
 func isWAVName(n string) bool {
 	e := strings.ToLower(filepath.Ext(n))
 	return e == ".wav" || e == ".bwf" || e == ".rf64"
@@ -224,6 +247,9 @@ func isWAVName(n string) bool {
 // renamed into place once finished, so a readable one with the right
 // length is complete.
 func completeOutput(in Input, out string) bool {
+	if st, err := os.Stat(out); err != nil || !st.Mode().IsRegular() {
+		return false
+	}
 	o, err := wavio.Open(out, nil)
 	if err != nil {
 		return false

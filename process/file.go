@@ -72,6 +72,7 @@ type FileJob struct {
 type StageSummary struct {
 	Family   string    `json:"family"`
 	Response string    `json:"response,omitempty"`
+	Curve    string    `json:"curve,omitempty"` // a weighting stage's curve
 	Order    int       `json:"order"`
 	Sections int       `json:"sections"`
 	EdgesHz  []float64 `json:"edges_hz"`
@@ -174,7 +175,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	}
 	res.Warnings = append(res.Warnings, filt.Warnings()...)
 	for _, st := range filt.Stages {
-		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Curve: st.Spec.Curve, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 	}
 	block := job.BlockFrames
 	if block <= 0 {

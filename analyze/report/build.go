@@ -43,11 +43,14 @@ type verifyDoc struct {
 		FrequencyHz float64  `json:"frequency_hz"`
 		Kind        string   `json:"kind"`
 		DesignedDB  *float64 `json:"designed_db"`
-		MeasuredDB  *float64 `json:"measured_db"`
-		LimitDB     *float64 `json:"limit_db"`
-		MarginDB    *float64 `json:"margin_db"`
-		Verdict     string   `json:"verdict"`
-		Reason      string   `json:"reason"`
+		// DesignRange is the design across the reading's resolution, the
+		// range the verdict used.
+		DesignRange *verify.Pair `json:"design_range_db"`
+		MeasuredDB  *float64     `json:"measured_db"`
+		LimitDB     *float64     `json:"limit_db"`
+		MarginDB    *float64     `json:"margin_db"`
+		Verdict     string       `json:"verdict"`
+		Reason      string       `json:"reason"`
 	} `json:"checks"`
 }
 
@@ -76,6 +79,12 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 		return Report{}, fmt.Errorf("report: the manifest's spec: %w", err)
 	}
 	r := Report{Title: "wavsieve filtering report", Subtitle: fmt.Sprintf("%d files; spec: %s", len(m.Files), specSummary(spec))}
+	for _, st := range spec.Stages {
+		if st.Curve != "" {
+			r.Notes = append(r.Notes, "These files are weighted ("+st.Curve+"): a weighted level computed from a file is not a sound level meter's or a vibration meter's reading; the microphone or accelerometer, its calibration and the measuring chain are unknown to wavsieve.")
+			break
+		}
+	}
 	t := Table{
 		Caption: "Run manifest (click a heading to sort)",
 		Columns: []string{"input", "output", "status", "rate (Hz)", "channels", "duration (s)", "peak in (dBFS)", "peak out (dBFS)", "clipped", "verified", "seconds", "error"},
@@ -162,7 +171,7 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 				Columns: []string{"frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
 				Numeric: []bool{true, false, true, true, true, true, false, false}}
 			for _, c := range vd.Checks {
-				t.Rows = append(t.Rows, []string{fmtHz(c.FrequencyHz), c.Kind, fmtPtr(c.DesignedDB), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason})
+				t.Rows = append(t.Rows, []string{fmtHz(c.FrequencyHz), c.Kind, designedCell(c.DesignedDB, c.DesignRange), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason})
 				t.RowClass = append(t.RowClass, c.Verdict)
 			}
 			sec.Tables = append(sec.Tables, t)
@@ -423,3 +432,20 @@ func fmtPtr(v *float64) string {
 }
 
 func fmtHz(v float64) string { return strconv.FormatFloat(v, 'g', 7, 64) }
+
+// designedCell is the designed response with the design range the
+// verdict used, when that range is wider than the printed value.
+func designedCell(d *float64, r *verify.Pair) string {
+	v := fmtPtr(d)
+	if r == nil || math.IsInf(r[0], 0) && math.IsInf(r[1], 0) {
+		return v
+	}
+	lo, hi := fmt.Sprintf("%.2f", r[0]), fmt.Sprintf("%.2f", r[1])
+	if math.IsInf(r[0], -1) {
+		lo = "-inf"
+	}
+	if lo == hi {
+		return v
+	}
+	return v + " (" + lo + ".." + hi + ")"
+}

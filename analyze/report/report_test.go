@@ -127,7 +127,7 @@ func TestVerdictWords(t *testing.T) {
 	in, out := filepath.Join(dir, "in.wav"), filepath.Join(dir, "out.wav")
 	writeWAV(t, in, 8000, 0.1)
 	writeWAV(t, out, 8000, 0)
-	edge := map[string]any{"frequency_hz": 1000, "kind": "passband-edge", "verdict": "pass"}
+	edge := map[string]any{"frequency_hz": 1000, "kind": "passband-edge", "verdict": "pass", "designed_db": -0.1, "design_range_db": []any{-0.2, 0.0}}
 	open := map[string]any{"frequency_hz": 50, "kind": "notch", "verdict": "unmeasurable", "reason": "too short"}
 	cases := []struct {
 		name   string
@@ -152,6 +152,12 @@ func TestVerdictWords(t *testing.T) {
 			row := r.Tables[0].Rows[0]
 			if got := row[9]; got != c.want {
 				t.Fatalf("verified column %q, want %q", got, c.want)
+			}
+			// The design range the verdict used is shown with the design.
+			for _, tb := range r.Files[0].Tables {
+				if len(tb.Rows) > 0 && tb.Rows[0][1] == "passband-edge" && tb.Rows[0][2] != "-0.10 (-0.20..0.00)" {
+					t.Errorf("designed cell %q, want the value and its range", tb.Rows[0][2])
+				}
 			}
 			caption := "the spec): " + c.want
 			found := false

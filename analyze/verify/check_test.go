@@ -63,6 +63,21 @@ func TestPointsAtExactEdges(t *testing.T) {
 				continue // an order above the limit: not this test's concern
 			}
 			pts := Points(f)
+			// And through a session's result, as the JSON carries it (a
+			// run too short to read gives every check, unmeasurable).
+			s, err := NewSession(f, nil, 1, 1000, Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			res := s.Result("in", "out", "test")
+			if len(res.Checks) != len(pts) || res.Verdict != Inconclusive {
+				t.Fatalf("%d checks for %d points, verdict %s", len(res.Checks), len(pts), res.Verdict)
+			}
+			for i, c := range res.Checks {
+				if c.FrequencyHz != pts[i].FrequencyHz || c.Kind != pts[i].Kind || c.Verdict != Unmeasurable || c.Reason == "" {
+					t.Fatalf("check %d: %+v for point %+v", i, c, pts[i])
+				}
+			}
 			for _, e := range []struct {
 				kind  string
 				edges design.Edges

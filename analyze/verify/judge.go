@@ -182,6 +182,9 @@ func (s *Session) judge(pi, ci, channel int) Check {
 	} else {
 		c.Reason = "agrees with the design range within its uncertainty"
 	}
+	if math.IsInf(ciLo, -1) {
+		c.Reason += fmt.Sprintf("; the reading goes down to the floor of the output (%s) here, %.1f dB", outName, ivHi)
+	}
 	return c
 }
 

@@ -145,12 +145,13 @@ const (
 )
 
 // ToneProbe measures the chain with a steady tone at each check frequency,
-// one tone at a time (a tone beside a deep notch would otherwise leak into
-// its reading), each filtered exactly as apply would filter a file of the
-// chain's format (a temporary file through process.FilterFile: the design
-// at the rate, zero-phase padding, output encoding and dither), then read
-// between the transients. Checks whose tone would need a file longer than
-// 2^24 frames come out unmeasurable.
+// filtered exactly as apply would filter a file of the chain's format (a
+// temporary file through process.FilterFile: the design at the rate,
+// zero-phase padding, output encoding and dither), then read between the
+// transients. Tones that do not interact share a file (see toneGroups); a
+// tone where the design is deep (a notch centre) is played alone. Checks
+// whose tones would need a file longer than 2^24 frames come out
+// unmeasurable.
 func ToneProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
 	f, err := process.DesignFor(ch.Spec, ch.In.SampleRate, ch.Name)
 	if err != nil {
@@ -170,19 +171,26 @@ func ToneProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
 		ConfidenceLevel: o.level(), Checks: []Check{}, Filter: f}
 	skip := int64(f.DecaySamples(toneDecayDB, 0))
 	res.SkippedFrames = skip
+	for _, c := range NewSessionChannels(ch.In.Channels, o.Channels) {
+		res.Channels = append(res.Channels, c+1)
+	}
 	pin, pout := filepath.Join(dir, "tone-in.wav"), filepath.Join(dir, "tone-out.wav")
-	for _, p := range Points(f) {
-		seg := toneSegment(f.SampleRate, p.FrequencyHz)
-		if o.Segment != 0 {
-			seg = o.Segment
+	for _, grp := range toneGroups(f, Points(f), o.Segment) {
+		seg := o.Segment
+		var hz []float64
+		for _, p := range grp {
+			seg = max(seg, toneSegment(f.SampleRate, p.FrequencyHz))
+			hz = append(hz, p.FrequencyHz)
 		}
 		frames := 2*skip + int64(seg)*(toneSegments+1)/2
-		s, err := NewSession(f, []Point{p}, ch.In.Channels, min(frames, maxProbeFrames), o)
+		og := o
+		og.Segment = seg
+		s, err := NewSession(f, grp, ch.In.Channels, min(frames, maxProbeFrames), og)
 		if err != nil {
 			return nil, err
 		}
 		if frames <= maxProbeFrames {
-			if err := writeTone(pin, ch.In, frames, p.FrequencyHz, ch.DitherSeed); err != nil {
+			if err := writeTones(pin, ch.In, frames, hz, ch.DitherSeed); err != nil {
 				return nil, err
 			}
 			job := process.FileJob{Input: pin, Output: pout, Spec: ch.Spec, Encoding: ch.Encoding, Bits: ch.Bits, NoDither: ch.NoDither,
@@ -192,7 +200,7 @@ func ToneProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
 				return nil, fmt.Errorf("verify: probe: %w", err)
 			}
 			if n := sum(fr.Clipped); n > 0 {
-				return nil, fmt.Errorf("verify: %w: %d samples of the %.6g Hz tone clipped at full scale; the filter's gain is too high for a -6 dBFS probe", ErrProbeClipped, n, p.FrequencyHz)
+				return nil, fmt.Errorf("verify: %w: %d samples of the tones at %v Hz clipped at full scale; the filter's gain is too high for a -6 dBFS probe", ErrProbeClipped, n, hz)
 			}
 			if err := feedPair(ctx, s, pin, pout); err != nil {
 				return nil, err
@@ -205,18 +213,63 @@ func ToneProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
 				r.Checks[i].Reason = fmt.Sprintf("the tone would need %d frames to settle and be read, more than the probe's %d", frames, maxProbeFrames)
 			}
 		}
-		res.Channels = r.Channels
-		res.Frames = max(res.Frames, frames)
+		res.Frames += frames
 		res.Checks = append(res.Checks, r.Checks...)
 	}
-	if res.Channels == nil {
-		for _, c := range NewSessionChannels(ch.In.Channels, o.Channels) {
-			res.Channels = append(res.Channels, c+1)
-		}
-	}
-	sort.SliceStable(res.Checks, func(i, j int) bool { return res.Checks[i].Channel < res.Checks[j].Channel })
+	sort.SliceStable(res.Checks, func(i, j int) bool {
+		a, b := res.Checks[i], res.Checks[j]
+		return a.Channel < b.Channel || a.Channel == b.Channel && a.FrequencyHz < b.FrequencyHz
+	})
 	res.Finish()
 	return res, nil
+}
+
+// toneLeak is the largest relative error one tone may put into another's
+// reading through the window (about 0.001 dB).
+const toneLeak = 1e-4
+
+// toneGroups puts the points' tones into groups that can share a file:
+// in each group, every tone's reading picks up every other tone (and its
+// image at minus its frequency) through the window's response, scaled by
+// the design there against the design at the reading, by at most
+// toneLeak. A tone where the design is deep (a notch centre) so ends up
+// alone.
+func toneGroups(f *design.Filter, pts []Point, segment int) [][]Point {
+	gain := func(hz float64) float64 { return math.Pow(10, f.EffectiveDB(hz)/20) }
+	leak := func(reader, other Point) float64 {
+		seg := segment
+		if seg == 0 {
+			seg = toneSegment(f.SampleRate, reader.FrequencyHz)
+		}
+		g := gain(reader.FrequencyHz)
+		if !(g > 1e-12) {
+			return math.Inf(1)
+		}
+		bins := float64(seg) / f.SampleRate
+		w := math.Max(bhResponse2((other.FrequencyHz-reader.FrequencyHz)*bins), bhResponse2((other.FrequencyHz+reader.FrequencyHz)*bins))
+		return math.Sqrt(w) * gain(other.FrequencyHz) / g
+	}
+	var groups [][]Point
+	for _, p := range pts {
+		placed := false
+		for gi, grp := range groups {
+			ok := true
+			for _, q := range grp {
+				if q.FrequencyHz == p.FrequencyHz || leak(p, q) > toneLeak || leak(q, p) > toneLeak {
+					ok = false
+				}
+			}
+			if ok {
+				groups[gi] = append(grp, p)
+				placed = true
+				break
+			}
+		}
+		if !placed {
+			groups = append(groups, []Point{p})
+		}
+	}
+	return groups
 }
 
 // NewSessionChannels lists the channels a session checks (counted from 0).
@@ -299,11 +352,22 @@ func feedPair(ctx context.Context, s *Session, in, out string) error {
 	return feedFiles(ctx, s, ri, ro, in, out)
 }
 
-// writeTone writes frames of a sine of amplitude toneAmp at hz on every
-// channel, in format f.
-func writeTone(name string, f wavio.Format, frames int64, hz float64, seed uint64) error {
-	w := 2 * math.Pi * hz / float64(f.SampleRate)
-	return writeSignal(name, f, frames, seed, func(t int64, _ int) float64 { return toneAmp * math.Sin(w*float64(t)) })
+// writeTones writes frames of sines at hz on every channel, in format f,
+// each of amplitude toneAmp / len(hz), so that their sum stays within
+// toneAmp.
+func writeTones(name string, f wavio.Format, frames int64, hz []float64, seed uint64) error {
+	amp := toneAmp / float64(len(hz))
+	w := make([]float64, len(hz))
+	for i, h := range hz {
+		w[i] = 2 * math.Pi * h / float64(f.SampleRate)
+	}
+	return writeSignal(name, f, frames, seed, func(t int64, _ int) float64 {
+		var v float64
+		for _, wi := range w {
+			v += math.Sin(wi * float64(t))
+		}
+		return amp * v
+	})
 }
 
 // writeNoise writes frames of white Gaussian noise at noiseRMS, seeded so

@@ -316,8 +316,10 @@ func (s *Session) planPoint(p Point, usable int64) plan {
 			return 0, 0, false
 		}
 		lo, hi = s.designRange(p.FrequencyHz, b, notch)
-		if hi-lo > ResolutionDB {
-			return lo, hi, false
+		if hi-lo > ResolutionDB || !fits(seg) {
+			// Too coarse; or too long for the run, when the delay's bias
+			// (small at this length) need not be worked out.
+			return lo, hi, hi-lo <= ResolutionDB
 		}
 		lo += s.delayBias(p.FrequencyHz, seg)
 		return lo, hi, hi-lo <= ResolutionDB

@@ -308,3 +308,47 @@ func TestToneProbe(t *testing.T) {
 		}
 	})
 }
+
+// TestMaskChecks: a stage carrying a standard's tolerance mask is checked
+// at each mask row's exact frequency against the row's limits, and the
+// rows count in the run's verdict like edges. The stage is hand-built (a
+// Butterworth high-pass with invented rows); the rows of real standards
+// come from their stages.
+func TestMaskChecks(t *testing.T) {
+	const rate = 8000
+	f := mustDesign(t, design.Spec{Stages: []design.Stage{{Family: design.Butterworth, Response: design.Highpass, Order: 2, CutoffHz: design.Edges{100}}}, ZeroPhase: true}, rate)
+	x := noise(1<<18, 0.1, 8)
+	y := filterWith(t, f, x)
+	at := func(hz float64) float64 { return f.EffectiveDB(hz) }
+	good := []design.MaskPoint{
+		{FrequencyHz: 200, Label: "200", LowerDB: at(200) - 1, UpperDB: at(200) + 1},
+		{FrequencyHz: 1000, Label: "1k", LowerDB: -0.5, UpperDB: 0.5},
+	}
+	cases := []struct {
+		name string
+		mask []design.MaskPoint
+		want string
+	}{
+		{"within the mask", good, Pass},
+		{"a row the response misses", append(append([]design.MaskPoint{}, good...), design.MaskPoint{FrequencyHz: 2000, Label: "2k", LowerDB: math.Inf(-1), UpperDB: -3}), Fail},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			f.Stages[0].Mask = c.mask
+			r := measure(t, f, x, y, Options{})
+			if len(r.Checks) != len(c.mask) {
+				t.Fatalf("%d checks for %d mask rows", len(r.Checks), len(c.mask))
+			}
+			for i, ch := range r.Checks {
+				m := c.mask[i]
+				if ch.Kind != KindMask || ch.FrequencyHz != m.FrequencyHz || ch.Label != m.Label {
+					t.Errorf("check %d: %s at %g (%q), want mask row %g (%q)", i, ch.Kind, ch.FrequencyHz, ch.Label, m.FrequencyHz, m.Label)
+				}
+			}
+			if r.Verdict != c.want {
+				logChecks(t, r)
+				t.Fatalf("verdict %s, want %s", r.Verdict, c.want)
+			}
+		})
+	}
+}

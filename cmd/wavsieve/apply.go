@@ -48,8 +48,9 @@ is skipped only when its digest matches, and refused otherwise (give
 
 --shard K/N keeps every N-th input of the sorted list, starting with the
 K-th, so that N machines given the same command share an archive: in a
-Slurm array, --shard $((SLURM_ARRAY_TASK_ID+1))/$SLURM_ARRAY_TASK_COUNT;
-in a Kubernetes indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
+Slurm array of N tasks, --shard $((SLURM_ARRAY_TASK_ID+1))/N (N written
+out, so that resubmitting one task keeps the shares); in a Kubernetes
+indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
 share writes its own record, wavsieve-manifest.K-of-N.json, holding the
 whole input list; 'wavsieve gather DIR' merges them and lists what is
 missing.
@@ -122,7 +123,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")
 	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "let NaN and infinite float samples through instead of refusing the file")
 	fs.BoolVar(&o.noProgress, "no-progress", false, "no progress display on a terminal")
-	verifyRuns := fs.Bool("verify", false, "measure every file written against the spec (as wavsieve verify) and record the verdicts in the manifest")
+	verifyRuns := fs.Bool("verify", false, "measure every file written against the spec (as wavsieve verify) and record the verdicts (pass, fail, inconclusive) in the manifest; a failed verification makes the exit code 1")
 	help := fs.BoolP("help", "h", false, "show this help")
 	if err := fs.Parse(args); err != nil {
 		return report(stderr, "apply", usagef("%v", err), "")
@@ -185,6 +186,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	// The record of the run: given by --manifest, or in the output
 	// folder, one per share when the inputs are shared out.
 	base := o.manifest
+	if base != "" && popt.Shards > 0 {
+		base += fmt.Sprintf(".%d-of-%d", popt.Shard, popt.Shards)
+	}
 	if base == "" {
 		dir := popt.OutputDir
 		if dir == "" {
@@ -198,7 +202,16 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	defer stop()
 	// Runs with one record are serialised from planning to the record's
 	// writing, so that the record always describes the files on disk.
+	// undo takes back the folder the lock made when the run stops before
+	// filtering anything.
+	undo := func() {}
 	if !o.dryRun {
+		if _, err := os.Stat(filepath.Dir(base)); err != nil {
+			undo = func() {
+				os.Remove(runrecord.LockPath(base))
+				os.Remove(filepath.Dir(base))
+			}
+		}
 		unlock, err := runrecord.Lock(ctx, base, func() {
 			fmt.Fprintf(stderr, "wavsieve apply: waiting for another run that writes the record %s.json to finish\n", base)
 		})
@@ -209,6 +222,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	rec, err := runrecord.Load(base)
 	if err != nil {
+		undo()
 		return report(stderr, "apply", err, "")
 	}
 	// A share also trusts the record that gather made of earlier shares.
@@ -229,6 +243,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	items, err := process.PlanInputs(found, popt)
 	if err != nil {
+		undo()
 		return report(stderr, "apply", err, "")
 	}
 	if o.dryRun {
@@ -438,7 +453,7 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 			failed++
 		} else {
 			for _, st := range filt.Stages {
-				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
+				r.Design = append(r.Design, process.StageSummary{Family: st.Family, Response: st.Response, Curve: st.Spec.Curve, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 			}
 		}
 		files = append(files, r)
@@ -477,6 +492,9 @@ func stageLine(s process.StageSummary) string {
 	what := s.Family
 	if s.Response != "" {
 		what += " " + s.Response
+	}
+	if s.Curve != "" {
+		what += " " + s.Curve
 	}
 	var e []string
 	for _, hz := range s.EdgesHz {

@@ -301,7 +301,11 @@ func printDesign(w io.Writer, f *design.Filter, res designResult) {
 		}
 		switch st.Form {
 		case design.FormStandard:
-			printWeighting(w, f, i, st)
+			if st.Weighting != nil {
+				printWeighting(w, f, i, st)
+			} else {
+				printBandStage(w, f, i, st)
+			}
 			continue
 		case design.FormTolerance:
 			fmt.Fprintf(w, "\nStage %d: %s, order %d (the minimum for the tolerances), %d sections, %d poles\n", i+1, what, st.Order, len(st.Sections), len(st.ZPK.Poles))

@@ -85,6 +85,8 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 		json.Unmarshal(rows, &whole)
 		doc := struct {
+			Kind     string               `json:"kind"`
+			Version  string               `json:"version"`
 			Files    json.RawMessage      `json:"files"`
 			Missing  []string             `json:"missing"`
 			Failed   []runrecord.Failure  `json:"failed"`
@@ -92,7 +94,7 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			Resubmit []runrecord.Resubmit `json:"resubmit"`
 			Twice    []string             `json:"done_twice,omitempty"`
 			Record   string               `json:"record"`
-		}{whole.Files, g.Missing, g.Failed, g.Shares, g.Resubmit, g.Twice, base + ".json"}
+		}{"wavsieve-gather", g.Record.Version, whole.Files, g.Missing, g.Failed, g.Shares, g.Resubmit, g.Twice, base + ".json"}
 		if doc.Resubmit == nil {
 			doc.Resubmit = []runrecord.Resubmit{}
 		}
@@ -115,6 +117,14 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		fmt.Fprintf(out, "done by more than one share: %s\n", in)
 	}
 	if len(g.Missing) > 0 {
+		const shown = 10
+		for i, in := range g.Missing {
+			if i == shown {
+				fmt.Fprintf(out, "missing: ... and %d more (all of them in gather --json)\n", len(g.Missing)-shown)
+				break
+			}
+			fmt.Fprintf(out, "missing: %s\n", in)
+		}
 		fmt.Fprintf(out, "%d inputs missing; redo them with:\n", len(g.Missing))
 		var idx []string
 		for _, r := range g.Resubmit {

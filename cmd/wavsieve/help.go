@@ -110,6 +110,14 @@ var specFamilies = []specFamily{
   "Wk", "Wm" (ISO 8041-1). No other keys; causal only. See 'wavsieve help
   weighting'. Weighted levels from a file are no sound level meter reading.
     {"family": "weighting", "curve": "A"}`},
+	{"band", `band: one fractional-octave band filter of IEC 61260-1 (base 10):
+  fraction b (1, 2, 3, 6, 12 or 24: 1/b-octave bands) and midband_hz, the
+  nominal (1000, 31.5, 12500) or exact mid-band frequency. A Butterworth
+  band-pass with its -3 dB points on the band edges, of the lowest order
+  whose response at the file's rate lies inside the class 1 mask of
+  IEC 61260-1:2014 (Table 1); 'verify' checks it against that mask. No
+  other keys; causal only. 'wavsieve bands' measures whole banks of them.
+    {"family": "band", "fraction": 3, "midband_hz": 1000}`},
 }
 
 func specHelp() string {
@@ -173,6 +181,9 @@ Stage keys (units in brackets):
   tracking        true or false, notch only: the notches follow the hum
                   measured in each file (fundamental_hz is then where it is
                   looked for, within 2 Hz); flag --track
+  fraction        [b] band only: the bands are 1/b octave: 1, 2, 3, 6, 12 or 24
+  midband_hz      [Hz] band only: nominal or exact IEC 61260-1 mid-band
+                  frequency of the band, e.g. 1000, 31.5 or 12500
   curve           weighting only: A, C, Z, Wb, Wc, Wd, We, Wf, Wh, Wj, Wk or Wm
 
 A frequency is a number, or an array of one or two numbers. Every edge must
@@ -199,6 +210,11 @@ wavsieve design --json
                "zeros": [[re, im], ...], "poles": [[re, im], ...], "gain",
                "sections": [[b0, b1, b2, a0, a1, a2], ...],
                "design_edges_hz", "notch_hz",
+               "weighting": {"curve", "standard", "method",
+                 "max_deviation_from_analog_db", "max_deviation_from_table_db",
+                 "class", "class1_up_to_hz", "caution", ...} (weighting only),
+               "mask": [{"nominal", "frequency_hz", "table_db", "lower_db",
+                 "upper_db", "designed_db", "within", "source"}] (A, C, Z),
                "checks": [{"frequency_hz", "kind", "designed_db", "limit_db",
                            "margin_db", "exact"}],
                "spec": {the stage as given}}],
@@ -262,14 +278,19 @@ wavsieve verify --json
 
 const exitHelp = `Exit codes
 
-  0  done: every file was done or skipped (apply), surveyed (survey),
-     every check passed or could not be measured (verify)
+  0  done: every file was done or skipped (apply), surveyed (survey);
+     (verify) pass: every edge, cutoff, notch and mask check was measured
+     and passed
   1  failed: a file could not be read, designed or written, a spec is
-     invalid, or (verify) a check failed; in a batch the other files are
-     still done, and the summary and the manifest say which failed
+     invalid, or (verify, apply --verify) a check failed; in a batch the
+     other files are still done, and the summary and the manifest say which
+     failed
   2  usage error: an unknown command or flag, a missing argument, or a flag
      value that cannot work (such as --cutoff at or above the Nyquist
      frequency of --rate); nothing was done
+  3  (verify) inconclusive: no check failed, but some edge, cutoff, notch or
+     mask check could not be measured (each says why); apply --verify
+     prints "inconclusive" and exits 0
 
 Messages go to stderr and data to stdout, so a script can test the code
 and still read the data.

@@ -32,9 +32,10 @@ exact frequency of every nominal frequency below 0.45 of the rate);
 
 At 44.1 kHz and above, A and C stay within 0.01 dB of the analog
 definition from 10 Hz to 16 kHz; ISO curves stay within 0.01 dB from
-2 f1 to f2/2 at rates from 8 times their upper band limit f2. A
-weighting runs causally only: --zero-phase would square it, and is
-refused.
+2 f1 to f2/2 at rates from 8 times their upper band limit f2. A and C
+meet class 1 at the 20 kHz row at any rate above 39.9 kHz (where that
+row lies below the Nyquist frequency). A weighting runs causally only:
+--zero-phase would square it, and is refused.
 
 Caution:
 ` + weightingCaution + `

@@ -41,6 +41,7 @@ func commands() []command {
 		{"survey", "measure mains hum, drift, rumble and clipping, and suggest a filter", runSurvey},
 		{"report", "make a self-contained HTML report of an apply run or a survey", runReport},
 		{"gather", "merge the records of the shares of a run and list what is missing", runGather},
+		{"bands", "measure octave and fractional-octave band levels of WAV files", runBands},
 	}
 }
 
@@ -58,7 +59,7 @@ Run 'wavsieve <command> --help' for a command's flags and examples, and
 (json), the exit codes (exit-codes) and the standard weightings
 (weighting). 'wavsieve --version' prints the version.
 
-Exit codes: 0 done, 1 failed, 2 usage error (see 'wavsieve help exit-codes').
+Exit codes: 0 done, 1 failed, 2 usage error, 3 verify inconclusive (see 'wavsieve help exit-codes').
 `
 
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {

@@ -128,3 +128,19 @@ func TestVerifyAndReportReadTheFolder(t *testing.T) {
 		})
 	}
 }
+
+func TestApplyPlanningErrorLeavesNoFolder(t *testing.T) {
+	// Two inputs that would write one output: refused before anything is
+	// filtered, and the output folder the record's lock needed is gone.
+	dir := t.TempDir()
+	writeTestWAV(t, filepath.Join(dir, "x", "a.wav"), 16000, 1, 0.2)
+	writeTestWAV(t, filepath.Join(dir, "y", "a.wav"), 16000, 1, 0.2)
+	out := filepath.Join(dir, "out")
+	code, _, stderr := runCmd(t, applyArgs("--no-progress", "--output", out, filepath.Join(dir, "x"), filepath.Join(dir, "y"))...)
+	if code == exitOK || !strings.Contains(stderr, "both be written") {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("the output folder was left behind")
+	}
+}

@@ -15,10 +15,10 @@ import (
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
-const reportHelp = `Make a self-contained HTML report of an apply run or a survey.
+const reportHelp = `Make a self-contained HTML report of an apply run, a survey or band levels.
 
 Usage:
-  wavsieve report --from <manifest.json|output folder|survey.json> --output <report.html> [flags]
+  wavsieve report --from <manifest.json|output folder|survey.json|bands.json> --output <report.html> [flags]
 
 The report is one HTML file with every plot embedded as SVG; it fetches
 nothing and opens offline in any browser. From an apply manifest it shows,
@@ -26,7 +26,10 @@ per file, the before/after spectra, the filter as designed at the file's
 rate with its pole/zero diagram, the verification table when the run was
 verified (apply --verify), and the whole manifest as a table that sorts by
 any column. From a survey document (survey --json) it shows each file's
-spectrum, its hum and its suggested spec.
+spectrum, its hum and its suggested spec. From a bands document (bands
+--json) it shows each file's band levels as a bar chart and a table, with
+the caution that they are no class 1 instrument reading unless the whole
+measurement chain is.
 
 Examples:
   wavsieve apply --spec samples/specs/rumble-and-hum.json --verify --output out/clean samples
@@ -35,13 +38,16 @@ Examples:
   wavsieve survey --json samples > out/survey.json
   wavsieve report --from out/survey.json --output out/survey.html
 
+  wavsieve bands --json samples > out/bands.json
+  wavsieve report --from out/bands.json --output out/bands.html
+
 Flags:
 `
 
 func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs := pflag.NewFlagSet("report", pflag.ContinueOnError)
 	fs.SetOutput(io.Discard)
-	from := fs.StringArray("from", nil, "the apply manifest or survey `document` (JSON); repeat it to gather several runs in one report")
+	from := fs.StringArray("from", nil, "the apply manifest, survey or bands `document` (JSON); repeat it to gather several runs in one report")
 	output := fs.StringP("output", "o", "", "the HTML `file` to write (- for standard output)")
 	maxS := fs.Float64("max-seconds", 120, "analyse at most this many `seconds` of each file")
 	help := fs.BoolP("help", "h", false, "show this help")
@@ -67,7 +73,7 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	for i, name := range *from {
 		one, err := buildReport(name, opt)
 		if err != nil {
-			return report(stderr, "report", err, "make one with 'wavsieve apply' (it writes wavsieve-manifest.json) or 'wavsieve survey --json'")
+			return report(stderr, "report", err, "make one with 'wavsieve apply' (it writes wavsieve-manifest.json), 'wavsieve survey --json' or 'wavsieve bands --json'")
 		}
 		if i == 0 {
 			r = one
@@ -117,6 +123,13 @@ func buildReport(name string, opt htmlreport.Options) (htmlreport.Report, error)
 	}
 	if json.Unmarshal(data, &probe) != nil || probe.Files == nil {
 		return htmlreport.Report{}, fmt.Errorf("%s: not a record of wavsieve apply nor a survey document", name)
+	}
+	if htmlreport.IsBands(data) {
+		r, err := htmlreport.FromBands(data)
+		if err != nil {
+			return r, fmt.Errorf("%s: %w", name, err)
+		}
+		return r, nil
 	}
 	r, err := htmlreport.FromSurvey(data, "", opt)
 	if err != nil {

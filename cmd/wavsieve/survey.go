@@ -7,8 +7,6 @@ import (
 	"io"
 	"io/fs"
 	"math"
-	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -214,12 +212,11 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	return exitOK
 }
 
-// expandInputs lists the WAV files an argument names, with the batch
-// planner that apply uses, so that both commands take the same files,
-// folders and patterns. The planner also plans outputs; they are given
-// a folder under the null device, which can hold no input, and ignored.
+// expandInputs lists the WAV files an argument names, with the input
+// discovery that apply uses, so that both commands take the same files,
+// folders and patterns.
 func expandInputs(arg string, recursive bool) ([]string, error) {
-	items, err := process.Plan([]string{arg}, process.PlanOptions{OutputDir: filepath.Join(os.DevNull, "survey"), Recursive: recursive})
+	items, err := process.Discover([]string{arg}, recursive)
 	if errors.Is(err, fs.ErrNotExist) {
 		return nil, wavio.PathError(arg, err)
 	}
@@ -232,7 +229,7 @@ func expandInputs(arg string, recursive bool) ([]string, error) {
 	}
 	var out []string
 	for _, it := range items {
-		out = append(out, it.Input)
+		out = append(out, it.Path)
 	}
 	return out, nil
 }

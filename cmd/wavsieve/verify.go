@@ -67,7 +67,8 @@ resolve what no recording can (a notch 2 Hz wide, a notch centre 100 dB
 down). --probe=noise uses white noise instead. Write the value with "=":
 --probe alone means tones.
 
---manifest takes the spec and the files from the manifest apply wrote, and
+--manifest takes the spec and the files from the record apply wrote (its
+JSON or CSV, or the output folder, whose share records it merges), and
 verifies every file it records as done (or only --input's entry); the
 paths are as apply recorded them, so run verify from where apply ran.
 
@@ -128,7 +129,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	o.sf.register(fs)
 	fs.StringVarP(&o.input, "input", "i", "", "the run's input WAV `file` (with --probe: the file whose rate, channels and format to probe)")
 	fs.StringVarP(&o.output, "output", "o", "", "the run's output WAV `file`")
-	fs.StringVar(&o.manifest, "manifest", "", "take the spec and the files from apply's JSON manifest `file`")
+	fs.StringVar(&o.manifest, "manifest", "", "take the spec and the files from apply's record `file` (JSON or CSV) or output folder")
 	fs.StringVar(&o.probe, "probe", "", "verify the chain with a probe instead of the recording: tones (the default) or `noise`, as --probe=noise")
 	fs.Lookup("probe").NoOptDefVal = "tones"
 	fs.IntVar(&o.rate, "rate", 0, "with --probe and no --input: the sample rate in `Hz`")
@@ -276,7 +277,7 @@ func verifyHint(err error) string {
 	case errors.Is(err, verify.ErrUnknownLength):
 		return "rewrite the file with a complete header (wavsieve apply writes one)"
 	}
-	if strings.Contains(err.Error(), "Nyquist") {
+	if errors.Is(err, design.ErrAboveNyquist) {
 		return "every edge must lie below half the sample rate of the file"
 	}
 	return ""
@@ -366,7 +367,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 	what := fmt.Sprintf("%s against %s", r.Output, r.Input)
 	switch r.Method {
 	case "tone probe":
-		what = fmt.Sprintf("tone probe in the format of %s, one tone per check frequency", r.Input)
+		what = fmt.Sprintf("tone probe in the format of %s: a steady tone at each check frequency", r.Input)
 	case "noise probe":
 		what = fmt.Sprintf("noise probe in the format of %s", r.Input)
 	}
@@ -386,7 +387,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 		}
 		fmt.Fprintf(w, "  %-2d %-2d %-13s %11s %8s %15s %8s %15s %9s %7s  %s\n", c.Channel, c.Stage, kind, fmtHz(c.FrequencyHz),
 			fmtDB(c.DesignedDB, "%.2f"), fmtPair(c.DesignRangeDB), fmtDB(c.MeasuredDB, "%.2f"), fmtPair(c.IntervalDB), lim, fmtDB(c.MarginDB, "%+.2f"), c.Verdict)
-		if c.Reason != "" && c.Verdict != verify.Pass {
+		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1)) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}
 	}

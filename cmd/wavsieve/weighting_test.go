@@ -151,4 +151,24 @@ func TestApplyWeighting(t *testing.T) {
 	if got := 20 * math.Log10(rms(ch[1])/ref); math.Abs(got-(-19.145)) > weightingLevelTolDB {
 		t.Errorf("100 Hz: %.4f dB", got)
 	}
+	// The HTML report of the run carries the weighted-level caution.
+	html := filepath.Join(dir, "r.html")
+	if code, _, errs := runCmd(t, "report", "--from", dir, "--output", html); code != exitOK {
+		t.Fatalf("report: exit %d: %s", code, errs)
+	}
+	if b, err := os.ReadFile(html); err != nil || !strings.Contains(string(b), "not a sound level meter") {
+		t.Errorf("the report lacks the weighting caution (%v)", err)
+	}
+}
+
+func TestDesignWeightingPlot(t *testing.T) {
+	name := filepath.Join(t.TempDir(), "a.svg")
+	code, out, errs := runCmd(t, "design", "--weighting", "A", "--rate", "44100", "--plot", name)
+	if code != exitOK || !strings.Contains(out, "plot written") {
+		t.Fatalf("exit %d: %s %s", code, out, errs)
+	}
+	b, err := os.ReadFile(name)
+	if err != nil || !strings.Contains(string(b), "class 1 limits, IEC 61672-1:2013 Table 3") {
+		t.Errorf("plot lacks the tolerance band's legend (%v)", err)
+	}
 }

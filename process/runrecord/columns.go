@@ -11,33 +11,14 @@ import (
 	"github.com/wavsieve/wavsieve/process"
 )
 
-// File is one row of the record: the outcome of one output.
+// File is one row of the record: the outcome of one output (a
+// process.FileResult), the spec it was made with and its verification.
+// A column is a field here or in process.FileResult, and an entry of
+// columns.
 type File struct {
-	Input         string
-	Output        string
-	Status        string
-	Error         string
-	SampleRate    int
-	Channels      int
-	Frames        int64
-	DurationS     float64
-	Format        string
-	OutFormat     string
-	ZeroPhase     bool
-	Design        []process.StageSummary
-	DesignDigest  string
-	Spec          json.RawMessage
-	PeakInDBFS    []float64
-	PeakOutDBFS   []float64
-	Clipped       []int64
-	DitherSeed    uint64
-	PadFrames     int
-	EdgeTransient int
-	// TrackRangeHz is the lowest and highest hum fundamental a tracking
-	// notch followed, nil without one.
-	TrackRangeHz []float64
-	Warnings     []string
-	Seconds      float64
+	process.FileResult
+	// Spec is the spec of the run that made the output (JSON).
+	Spec json.RawMessage
 	// Verify is apply --verify's verification of the output (a JSON
 	// document of its own), or nil.
 	Verify json.RawMessage
@@ -75,14 +56,7 @@ var columns = []column{
 // FromResult is the row of a file's result; spec is the run's spec
 // (JSON) and verify its verification (JSON, or nil).
 func FromResult(r process.FileResult, spec, verify json.RawMessage) File {
-	return File{
-		Input: r.Input, Output: r.Output, Status: r.Status, Error: r.Error,
-		SampleRate: r.SampleRate, Channels: r.Channels, Frames: r.Frames, DurationS: r.DurationS,
-		Format: r.Format, OutFormat: r.OutFormat, ZeroPhase: r.ZeroPhase, Design: r.Design,
-		DesignDigest: r.DesignDigest, Spec: spec, PeakInDBFS: r.PeakInDBFS, PeakOutDBFS: r.PeakOutDBFS,
-		Clipped: r.Clipped, DitherSeed: r.DitherSeed, PadFrames: r.PadFrames, EdgeTransient: r.EdgeTransient,
-		TrackRangeHz: r.TrackRangeHz, Warnings: r.Warnings, Seconds: r.Seconds, Verify: verify,
-	}
+	return File{FileResult: r, Spec: spec, Verify: verify}
 }
 
 // column is one entry of the table.

@@ -132,7 +132,7 @@ func Gather(ctx context.Context, dir string) (*Gathered, error) {
 	g := &Gathered{Shares: Shares{Total: n, Found: []int{}}, Missing: []string{}, Failed: []Failure{}}
 	for _, s := range shares {
 		if s.n != n || s.rec.Share == nil || s.rec.Share.Count != n || s.rec.Share.Index != s.k {
-			return nil, fmt.Errorf("runrecord: %s: a share of %d among shares of %d; gather the records of one run at a time", s.path, s.n, n)
+			return nil, fmt.Errorf("runrecord: %s is a share of %d, but %s one of %d: the folder holds the records of two runs cut differently; gather the records of one run at a time (move the other run's %s.K-of-N files away)", filepath.Base(s.path), s.n, filepath.Base(shares[0].path), n, BaseName)
 		}
 		if !sameList(s.rec.Inputs, inputs) {
 			return nil, fmt.Errorf("runrecord: %s: its input list differs from %s's; the shares were not cut from the same inputs", s.path, filepath.Base(shares[0].path))

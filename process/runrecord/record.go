@@ -69,6 +69,9 @@ type Record struct {
 	DryRun     bool     `json:"dry_run,omitempty"`
 	// Files are the rows, one per output, sorted by output.
 	Files []File `json:"-"`
+
+	// index maps keys to rows for Lookup; Merge clears it.
+	index map[string]int
 }
 
 // New returns an empty record of this version of wavsieve.
@@ -79,13 +82,17 @@ func key(output string) string { return filepath.Clean(output) }
 
 // Lookup returns the row of output, if any.
 func (r *Record) Lookup(output string) (File, bool) {
-	k := key(output)
-	for _, f := range r.Files {
-		if key(f.Output) == k {
-			return f, true
+	if r.index == nil || len(r.index) > len(r.Files) {
+		r.index = make(map[string]int, len(r.Files))
+		for i, f := range r.Files {
+			r.index[key(f.Output)] = i
 		}
 	}
-	return File{}, false
+	i, ok := r.index[key(output)]
+	if !ok || i >= len(r.Files) || key(r.Files[i].Output) != key(output) {
+		return File{}, false
+	}
+	return r.Files[i], true
 }
 
 // Merge adds the rows of a run: a row replaces the row of its output,
@@ -115,6 +122,7 @@ func (r *Record) Merge(rows []File) {
 		r.Files[i] = f
 	}
 	sort.SliceStable(r.Files, func(i, j int) bool { return r.Files[i].Output < r.Files[j].Output })
+	r.index = nil
 }
 
 func exists(name string) bool {

@@ -17,15 +17,19 @@ import (
 func sampleRows() []File {
 	return []File{
 		{
-			Input: "in/a.wav", Output: "out/a.wav", Status: StatusDone, SampleRate: 48000, Channels: 2, Frames: 48000,
-			DurationS: 1, Format: "48000 Hz, 2 ch, 24-bit pcm", OutFormat: "48000 Hz, 2 ch, 32-bit float", ZeroPhase: true,
-			Design:       []process.StageSummary{{Family: "elliptic", Response: "lowpass", Order: 6, Sections: 3, EdgesHz: []float64{2000, 2500}}},
-			DesignDigest: "0123abcd", Spec: json.RawMessage(`{"family":"elliptic","order":6}`),
-			PeakInDBFS: []float64{-3.25, -0.1}, PeakOutDBFS: []float64{-6.5, -1.0 / 3}, Clipped: []int64{0, 12},
-			DitherSeed: 1 << 60, PadFrames: 100, EdgeTransient: 3, TrackRangeHz: []float64{49.8, 50.2}, Warnings: []string{"one, \"quoted\"", "two"},
-			Seconds: 0.125, Verify: json.RawMessage(`{"pass":true}`),
+			FileResult: process.FileResult{
+				Input: "in/a.wav", Output: "out/a.wav", Status: StatusDone, SampleRate: 48000, Channels: 2, Frames: 48000,
+				DurationS: 1, Format: "48000 Hz, 2 ch, 24-bit pcm", OutFormat: "48000 Hz, 2 ch, 32-bit float", ZeroPhase: true,
+				Design:       []process.StageSummary{{Family: "elliptic", Response: "lowpass", Order: 6, Sections: 3, EdgesHz: []float64{2000, 2500}}},
+				DesignDigest: "0123abcd",
+				PeakInDBFS:   []float64{-3.25, -0.1}, PeakOutDBFS: []float64{-6.5, -1.0 / 3}, Clipped: []int64{0, 12},
+				DitherSeed: 1 << 60, PadFrames: 100, EdgeTransient: 3, TrackRangeHz: []float64{49.8, 50.2}, Warnings: []string{"one, \"quoted\"", "two"},
+				Seconds: 0.125,
+			},
+			Spec:   json.RawMessage(`{"family":"elliptic","order":6}`),
+			Verify: json.RawMessage(`{"pass":true}`),
 		},
-		{Input: "in/b,odd.wav", Output: "out/b,odd.wav", Status: StatusFailed, Error: "in/b,odd.wav: at this file's 8000 Hz rate: bad\nline"},
+		row(process.FileResult{Input: "in/b,odd.wav", Output: "out/b,odd.wav", Status: StatusFailed, Error: "in/b,odd.wav: at this file's 8000 Hz rate: bad\nline"}),
 	}
 }
 
@@ -106,21 +110,21 @@ func TestMerge(t *testing.T) {
 	dir := t.TempDir()
 	onDisk := filepath.Join(dir, "a.wav")
 	os.WriteFile(onDisk, []byte("x"), 0o644)
-	done := File{Input: "a", Output: onDisk, Status: StatusDone, SampleRate: 48000, DesignDigest: "d1"}
+	done := row(process.FileResult{Input: "a", Output: onDisk, Status: StatusDone, SampleRate: 48000, DesignDigest: "d1"})
 	cases := []struct {
 		name string
 		next File
 		want File
 	}{
-		{"skipped keeps the earlier row", File{Input: "a", Output: onDisk, Status: StatusSkipped}, done},
-		{"failed keeps a done row whose output exists", File{Input: "a", Output: onDisk, Status: StatusFailed, Error: "x"}, done},
-		{"redone replaces", File{Input: "a", Output: onDisk, Status: StatusDone, DesignDigest: "d2"}, File{Input: "a", Output: onDisk, Status: StatusDone, DesignDigest: "d2"}},
-		{"same output by another spelling", File{Input: "a", Output: filepath.Join(dir, ".", "a.wav"), Status: StatusDone, DesignDigest: "d3"}, File{Input: "a", Output: filepath.Join(dir, ".", "a.wav"), Status: StatusDone, DesignDigest: "d3"}},
+		{"skipped keeps the earlier row", row(process.FileResult{Input: "a", Output: onDisk, Status: StatusSkipped}), done},
+		{"failed keeps a done row whose output exists", row(process.FileResult{Input: "a", Output: onDisk, Status: StatusFailed, Error: "x"}), done},
+		{"redone replaces", row(process.FileResult{Input: "a", Output: onDisk, Status: StatusDone, DesignDigest: "d2"}), row(process.FileResult{Input: "a", Output: onDisk, Status: StatusDone, DesignDigest: "d2"})},
+		{"same output by another spelling", row(process.FileResult{Input: "a", Output: filepath.Join(dir, ".", "a.wav"), Status: StatusDone, DesignDigest: "d3"}), row(process.FileResult{Input: "a", Output: filepath.Join(dir, ".", "a.wav"), Status: StatusDone, DesignDigest: "d3"})},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			r := New()
-			r.Merge([]File{done, {Input: "b", Output: "b.wav", Status: StatusDone}})
+			r.Merge([]File{done, row(process.FileResult{Input: "b", Output: "b.wav", Status: StatusDone})})
 			r.Merge([]File{c.next})
 			if len(r.Files) != 2 {
 				t.Fatalf("%d rows, want 2", len(r.Files))
@@ -143,7 +147,7 @@ func TestUpdateConcurrent(t *testing.T) {
 		go func(i int) {
 			defer wg.Done()
 			err := Update(context.Background(), base, func(r *Record) error {
-				r.Merge([]File{{Input: "in", Output: filepath.Join("out", string(rune('a'+i))+".wav"), Status: StatusDone}})
+				r.Merge([]File{row(process.FileResult{Input: "in", Output: filepath.Join("out", string(rune('a'+i))+".wav"), Status: StatusDone})})
 				return nil
 			})
 			if err != nil {
@@ -194,5 +198,25 @@ func TestDamagedRecordIsKept(t *testing.T) {
 	}
 	if b, _ := os.ReadFile(base + ".json"); string(b) != "{broken" {
 		t.Error("a damaged record was overwritten")
+	}
+}
+
+// row is a row with no spec and no verification.
+func row(r process.FileResult) File { return File{FileResult: r} }
+
+func TestEveryFieldHasAColumn(t *testing.T) {
+	// A field added to process.FileResult (or File) without its entry in
+	// the table would silently be left out of the record: one column per
+	// field of the result, plus the spec and the verification.
+	want := reflect.TypeOf(process.FileResult{}).NumField() + 2
+	if len(columns) != want {
+		t.Errorf("%d columns for %d fields: give each field of process.FileResult and File one entry in columns", len(columns), want)
+	}
+	seen := map[string]bool{}
+	for _, c := range columns {
+		if seen[c.key] {
+			t.Errorf("column %q twice", c.key)
+		}
+		seen[c.key] = true
 	}
 }
