@@ -50,6 +50,11 @@ func run(secs, rate float64, wavDir string, measure bool) error {
 		return err
 	}
 	defer os.RemoveAll(dir)
+	if wavDir != "" {
+		if err := os.MkdirAll(wavDir, 0o755); err != nil {
+			return err
+		}
+	}
 	for _, s := range []*humscene.Scene{humscene.Reedmere(rate, secs, 1), humscene.CalderFold(rate, secs, 2)} {
 		lo, hi := math.Inf(1), math.Inf(-1)
 		for _, f := range s.Freq {
