@@ -188,7 +188,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	var trk *tracked
 	if tIdx >= 0 {
 		if trk, err = trackPass(ctx, &job, filt, tIdx, block); err != nil {
-			return res, fmt.Errorf("%s: tracking the hum: %w", job.Input, err)
+			return res, fmt.Errorf("%s: tracking the hum: %w (wavsieve survey shows what hum the file holds; without tracking a fixed notch runs)", job.Input, err)
 		}
 		res.TrackRangeHz = []float64{trk.lo, trk.hi}
 	}

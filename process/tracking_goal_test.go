@@ -1,10 +1,17 @@
 package process_test
 
 import (
+	"context"
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
 	"testing"
 
+	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/internal/humscene"
+	"github.com/wavsieve/wavsieve/process"
 )
 
 // Limits of the tracking notch's goal (measured with the twin-polarity
@@ -87,6 +94,55 @@ func TestTrackingNotchGoal(t *testing.T) {
 				if w > goalWidthHz {
 					t.Errorf("notch %.3f Hz wide, want <= %g", w, goalWidthHz)
 				}
+			}
+		})
+	}
+}
+
+// TestTrackingErrors checks that a tracking run that cannot be done fails
+// with an error naming the file, and writes no output.
+func TestTrackingErrors(t *testing.T) {
+	dir := t.TempDir()
+	s := humscene.Reedmere(8000, 3, 1)
+	hum := filepath.Join(dir, "hum.wav")
+	if err := humscene.WriteWAV(hum, s.Mix(1), s.Rate, 32); err != nil {
+		t.Fatal(err)
+	}
+	quiet := filepath.Join(dir, "quiet.wav")
+	if err := humscene.WriteWAV(quiet, s.Clean, s.Rate, 32); err != nil {
+		t.Fatal(err)
+	}
+	notch := design.Stage{Family: design.Notch, FundamentalHz: 50, Harmonics: 5, BandwidthHz: 0.5, Tracking: true}
+	cases := []struct {
+		name    string
+		in      string
+		spec    design.Spec
+		tracker process.NewHumTracker
+		is      error
+		text    string
+	}{
+		{"no tracker", hum, design.Spec{Stages: []design.Stage{notch}}, nil, process.ErrNoTracker, ""},
+		{"two tracking stages", hum, design.Spec{Stages: []design.Stage{notch, notch}}, humscene.Tracker, nil, "both track the hum"},
+		{"no hum in the file", quiet, design.Spec{Stages: []design.Stage{notch}}, humscene.Tracker, analyze.ErrNoHum, ""},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			out := filepath.Join(dir, "out.wav")
+			_, err := process.FilterFile(context.Background(), process.FileJob{Input: tc.in, Output: out, Spec: tc.spec, NewTracker: tc.tracker})
+			if err == nil {
+				t.Fatal("no error")
+			}
+			if !strings.Contains(err.Error(), tc.in) {
+				t.Errorf("error %q does not name the file", err)
+			}
+			if tc.is != nil && !errors.Is(err, tc.is) {
+				t.Errorf("error %q is not %v", err, tc.is)
+			}
+			if tc.text != "" && !strings.Contains(err.Error(), tc.text) {
+				t.Errorf("error %q lacks %q", err, tc.text)
+			}
+			if _, serr := os.Stat(out); serr == nil {
+				t.Errorf("output written despite the error")
 			}
 		})
 	}

@@ -98,3 +98,54 @@ func TestTrackCombMatchesDesign(t *testing.T) {
 		})
 	}
 }
+
+// TestTrackCombPerChannel checks one track per channel: each channel is
+// notched at its own fundamental, as the fixed comb designed there.
+func TestTrackCombPerChannel(t *testing.T) {
+	const rate = 8000.0
+	f := [2]float64{50, 50.7}
+	n := int(rate * 2)
+	x := make([]float64, 2*n)
+	for i := 0; i < n; i++ {
+		for c := 0; c < 2; c++ {
+			x[2*i+c] = 0.3 * math.Sin(2*math.Pi*f[c]*2*float64(i)/rate)
+		}
+	}
+	harm := []float64{1, 2, 3}
+	widths := []float64{0.5, 0.5, 0.5}
+	cfg := Config{Channels: 2}
+	tv, err := newTrackComb(rate, cfg, []FrequencyTrack{constTrack(f[0]), constTrack(f[1])}, harm, widths, 0.5)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := newTrackedCascade(nil, cfg, tv)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := c.Process(nil, x)
+	for ch := 0; ch < 2; ch++ {
+		d, err := design.Design(design.Spec{Stages: []design.Stage{{Family: design.Notch, FundamentalHz: f[ch], Harmonics: 3, BandwidthHz: 0.5}}}, rate)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ref, err := NewCascade(d.Sections(), Config{Channels: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		one := make([]float64, n)
+		for i := range one {
+			one[i] = x[2*i+ch]
+		}
+		want := ref.Process(nil, one)
+		worst := 0.0
+		for i := range want {
+			worst = math.Max(worst, math.Abs(got[2*i+ch]-want[i]))
+		}
+		if worst > combTol {
+			t.Errorf("channel %d: largest difference from the comb at %g Hz %.3g, want <= %g", ch+1, f[ch], worst, combTol)
+		}
+	}
+	if _, err := newTrackComb(rate, Config{Channels: 3}, []FrequencyTrack{constTrack(50), constTrack(50)}, harm, widths, 0.5); err == nil {
+		t.Errorf("two tracks for three channels: no error")
+	}
+}
