@@ -4,12 +4,11 @@ import "github.com/wavsieve/wavsieve/design"
 
 // Kernels of the band bank. A second-order section's recursion is a
 // chain of dependent multiply-adds, so one section over a block runs at
-// the latency of that chain, not at the CPU's throughput. Both kernels
-// below give the CPU four independent chains per step: four bands'
-// sections side by side (lanes4), or four consecutive sections of one
-// cascade each a sample apart (wave4). Each does, per sample and
-// section, the arithmetic of sosState.run in the same order, so the
-// results are the same bit for bit.
+// the latency of that chain, not at the CPU's throughput. The wavefront
+// kernels give the CPU three or four independent chains per step:
+// consecutive sections of one cascade, each a sample apart (wave3,
+// wave4). Per sample and section they do the arithmetic of oneSection in
+// the same order, so the results are the same bit for bit (tested).
 
 // identity is a section that passes its input unchanged (its state stays
 // zero): it pads cascades to a common length.

@@ -83,7 +83,7 @@ type BandBank struct {
 	stages []*bankStage // one per decimation level, level 0 first
 	ch     int
 
-	pre []*sosState // per channel, nil when no prefilter
+	pre *bankBand // the prefilter, with its state per channel; nil when none
 
 	// accumulators
 	totalFrames int64
@@ -115,10 +115,10 @@ type bankStage struct {
 	tmp []float64
 }
 
-// bankBand is one band's filter at its stage, with its state per
-// channel.
+// bankBand is one band's filter at its stage (or the prefilter), with its
+// state per channel.
 type bankBand struct {
-	index int              // into BandBank.bands
+	index int              // into BandBank.bands; -1 for the prefilter
 	secs  []design.Section // normalised, a0 = 1
 	z     [][][2]float64   // [channel][section]
 }
@@ -171,38 +171,18 @@ func normalised(secs []design.Section) []design.Section {
 	return out
 }
 
-// sosState is a cascade of second-order sections with its state, run in
-// transposed direct form II.
-type sosState struct {
-	s []design.Section
-	z []float64
-}
+// aboveNyquist is a band range reaching past the Nyquist frequency; it
+// is design.ErrAboveNyquist for errors.Is.
+type aboveNyquist string
 
-func newSOS(s []design.Section) *sosState {
-	return &sosState{s: s, z: make([]float64, 2*len(s))}
-}
-
-// run filters x in place.
-func (f *sosState) run(x []float64) {
-	for k := range f.s {
-		sec := &f.s[k]
-		b0, b1, b2, a1, a2 := sec[0], sec[1], sec[2], sec[4], sec[5]
-		z1, z2 := f.z[2*k], f.z[2*k+1]
-		for i, v := range x {
-			y := b0*v + z1
-			z1 = b1*v - a1*y + z2
-			z2 = b2*v - a2*y
-			x[i] = y
-		}
-		f.z[2*k], f.z[2*k+1] = z1, z2
-	}
-}
+func (e aboveNyquist) Error() string        { return string(e) }
+func (e aboveNyquist) Is(target error) bool { return target == design.ErrAboveNyquist }
 
 // ErrNoBands is returned by NewBandBank when no band lies in the range.
 var ErrNoBands = errors.New("analyze: no band lies in the requested range at this sample rate")
 
-// bankLowpass is the anti-alias filter of the decimation by 2, as a
-// spec relative to the rate (design.Design works in Hz: it is scaled).
+// bankLowpass is the anti-alias filter of the decimation by 2 from rate:
+// its edges are the same fractions of every rate it is designed at.
 func bankLowpass(rate float64) (*design.Filter, error) {
 	return design.Design(design.Spec{Stages: []design.Stage{{
 		Family: design.Elliptic, Response: design.Lowpass,
@@ -236,6 +216,9 @@ func NewBandBank(o BankOptions) (*BandBank, error) {
 	if defaultTo {
 		to = o.SampleRate / 2
 	}
+	if defaultTo && from > to {
+		return nil, ErrNoBands
+	}
 	if !(from > 0) || !(to >= from) {
 		return nil, fmt.Errorf("analyze: invalid band range %g Hz to %g Hz", from, to)
 	}
@@ -245,7 +228,7 @@ func NewBandBank(o BankOptions) (*BandBank, error) {
 			continue
 		}
 		if !(bd.UpperHz < o.SampleRate/2) {
-			return nil, fmt.Errorf("analyze: the 1/%d-octave band %s Hz reaches %.6g Hz, above the Nyquist frequency %g Hz; lower the upper end of the range: %w", o.Fraction, bd.Label, bd.UpperHz, o.SampleRate/2, design.ErrAboveNyquist)
+			return nil, aboveNyquist(fmt.Sprintf("analyze: the 1/%d-octave band %s Hz reaches %.6g Hz, above the Nyquist frequency %g Hz; lower the upper end of the range", o.Fraction, bd.Label, bd.UpperHz, o.SampleRate/2))
 		}
 		bands = append(bands, bd)
 	}
@@ -313,8 +296,9 @@ func NewBandBank(o BankOptions) (*BandBank, error) {
 		rate /= 2
 	}
 	if len(o.Prefilter) > 0 {
-		for c := 0; c < o.Channels; c++ {
-			b.pre = append(b.pre, newSOS(normalised(o.Prefilter)))
+		b.pre = &bankBand{index: -1, secs: normalised(o.Prefilter), z: make([][][2]float64, o.Channels)}
+		for c := range b.pre.z {
+			b.pre.z[c] = make([][2]float64, len(o.Prefilter))
 		}
 	}
 	b.overallSum = make([]float64, o.Channels)
@@ -348,8 +332,10 @@ func (b *BandBank) Reset() {
 			clear(st.lpz[c])
 		}
 	}
-	for _, f := range b.pre {
-		clear(f.z)
+	if b.pre != nil {
+		for c := range b.pre.z {
+			clear(b.pre.z[c])
+		}
 	}
 	b.totalFrames, b.intStart, b.intFrames = 0, 0, 0
 	clear(b.overallSum)
@@ -425,7 +411,7 @@ func (b *BandBank) write(frames []float64) {
 			}
 		}
 		if b.pre != nil {
-			b.pre[c].run(x)
+			b.pre.run(x, c)
 		}
 		s := sumSquares(x)
 		b.overallSum[c] += s

@@ -1,6 +1,7 @@
 package analyze
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -116,7 +117,7 @@ func TestBankPinkNoiseEqualPerOctave(t *testing.T) {
 	const rate = 48000
 	// spreadDB allows the band shapes' small differences near Nyquist
 	// (bilinear warping) and the start-up of the lowest band.
-	const spreadDB = 0.15
+	const spreadDB = 0.05 // measured spread: 0.025 dB (31.5 Hz to 8 kHz at 48 kHz)
 	x := pinkNoise(1<<20, rate, 5, 7)
 	lv, b := bankLevels(t, BankOptions{SampleRate: rate, Channels: 1, Fraction: 1, FromHz: 31.5}, x)
 	lo, hi := math.Inf(1), math.Inf(-1)
@@ -132,11 +133,14 @@ func TestBankPinkNoiseEqualPerOctave(t *testing.T) {
 
 // TestBankEnergy: on white noise the band powers add up to the power of
 // the noise between the lowest band's lower edge and the highest band's
-// upper edge (Parseval; adjacent Butterworth bands cross at -3 dB, so
-// their squared responses add up to about 1 across the overlap).
+// upper edge (Parseval), plus what the bands' skirts overlap: adjacent
+// Butterworth bands cross at -3 dB, and the noise bandwidth of an order-N
+// Butterworth is (pi/2N) / sin(pi/2N) of its -3 dB width (1.047 for N = 3,
+// +0.20 dB), so the sum may exceed the power between the edges by about
+// that much and never fall short of it.
 func TestBankEnergy(t *testing.T) {
 	const rate = 48000
-	const tolDB = 0.2 // the squared responses' sum ripples across the overlaps and skirts past the ends
+	const lowDB, highDB = -0.02, 0.25 // the statistical error of 22 s of noise is below 0.02 dB
 	x := bankNoise(1<<20, 3)
 	for _, fr := range []int{1, 3} {
 		lv, b := bankLevels(t, BankOptions{SampleRate: rate, Channels: 1, Fraction: fr, FromHz: 100, ToHz: 8000}, x)
@@ -148,7 +152,9 @@ func TestBankEnergy(t *testing.T) {
 		// White noise: the power between f1 and f2 is the total times
 		// (f2 - f1) / (rate / 2).
 		want := lv.Overall[0] * (bands[len(bands)-1].UpperHz - bands[0].LowerHz) / (rate / 2)
-		if d := msDB(sum) - msDB(want); math.Abs(d) > tolDB {
+		d := msDB(sum) - msDB(want)
+		t.Logf("1/%d: band powers %.4f dB, noise between the edges %.4f dB", fr, msDB(sum), msDB(want))
+		if d < lowDB || d > highDB {
 			t.Errorf("1/%d: band powers add up to %.3f dB, the noise between the edges is %.3f dB", fr, msDB(sum), msDB(want))
 		}
 	}
@@ -263,8 +269,11 @@ func TestBankDefaultRange(t *testing.T) {
 	if _, err := NewBandBank(BankOptions{SampleRate: 48000, Channels: 1, Fraction: 3, FromHz: 25, ToHz: 20000}); err != nil {
 		t.Errorf("25 Hz..20 kHz at 48 kHz: %v", err)
 	}
-	if _, err := NewBandBank(BankOptions{SampleRate: 44100, Channels: 1, Fraction: 3, ToHz: 20000}); err == nil {
-		t.Errorf("20 kHz third at 44.1 kHz accepted")
+	if _, err := NewBandBank(BankOptions{SampleRate: 44100, Channels: 1, Fraction: 3, ToHz: 20000}); !errors.Is(err, design.ErrAboveNyquist) {
+		t.Errorf("20 kHz third at 44.1 kHz: %v, want ErrAboveNyquist", err)
+	}
+	if _, err := NewBandBank(BankOptions{SampleRate: 8000, Channels: 1, Fraction: 1, FromHz: 5000}); !errors.Is(err, ErrNoBands) {
+		t.Errorf("octaves from 5 kHz at 8 kHz: %v, want ErrNoBands", err)
 	}
 }
 

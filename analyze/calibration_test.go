@@ -3,6 +3,8 @@ package analyze
 import (
 	"math"
 	"testing"
+
+	"github.com/wavsieve/wavsieve/design"
 )
 
 func TestCalibration(t *testing.T) {
@@ -62,6 +64,34 @@ func TestCalibration(t *testing.T) {
 		if bad() == nil {
 			t.Error("a bad calibration was accepted")
 		}
+	}
+}
+
+// sosState is the plain serial cascade of second-order sections, the
+// reference of the wavefront kernels, run in
+// transposed direct form II.
+type sosState struct {
+	s []design.Section
+	z []float64
+}
+
+func newSOS(s []design.Section) *sosState {
+	return &sosState{s: s, z: make([]float64, 2*len(s))}
+}
+
+// run filters x in place.
+func (f *sosState) run(x []float64) {
+	for k := range f.s {
+		sec := &f.s[k]
+		b0, b1, b2, a1, a2 := sec[0], sec[1], sec[2], sec[4], sec[5]
+		z1, z2 := f.z[2*k], f.z[2*k+1]
+		for i, v := range x {
+			y := b0*v + z1
+			z1 = b1*v - a1*y + z2
+			z2 = b2*v - a2*y
+			x[i] = y
+		}
+		f.z[2*k], f.z[2*k+1] = z1, z2
 	}
 }
 

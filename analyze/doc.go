@@ -12,6 +12,16 @@
 // dBFS^2/Hz for densities and dBFS for powers, dB re 1 FS^2, so a full-scale
 // sinusoid (power 1/2) reads -3.01 dBFS. Gains are 20 log10 |H| in dB.
 //
+// # Band levels
+//
+// BandBank splits signals into the octave and fractional-octave bands of
+// IEC 61260-1 (class 1 band filters from design.DesignBand), decimating
+// by octaves so that the low bands run at low rates, and gives the mean
+// square of every band and channel over the whole signal and over
+// intervals. Calibration turns mean squares into levels in dB re full
+// scale or re the ISO 1683 reference of a physical quantity. Band levels
+// from a file are no class 1 instrument reading unless the whole chain is.
+//
 // # Estimates
 //
 // An Estimator is made once from Options (sample rate, segment length,

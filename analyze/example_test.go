@@ -40,7 +40,9 @@ func ExampleEstimator_Tone() {
 }
 
 // The transfer estimate of a two-tap averager y[t] = (x[t] + x[t-1])/2, whose
-// gain at f is |cos(pi f/fs)|: -3.01 dB at fs/4.
+// gain at f is |cos(pi f/fs)|: -3.01 dB at fs/4. The gain is a definition:
+// H(e^jw) = (1 + e^-jw)/2 = e^-jw/2 cos(w/2), and 20 log10 cos(pi/4) =
+// 10 log10(1/2) = -3.0103 dB.
 func ExampleTransfer_At() {
 	const fs = 8000.0
 	x := make([]float64, 1<<16)
@@ -107,6 +109,11 @@ func ExampleEstimator_Spectra() {
 		return
 	}
 	fmt.Println(r.Window, r.Scaling, r.Units, len(r.Frequencies), len(r.Channels), r.Segments)
+	// The Hann window's equivalent noise bandwidth is 1.50 bins: Harris,
+	// "On the use of windows for harmonic analysis with the discrete
+	// Fourier transform", Proc. IEEE 66(1), 1978, Table 1 (quoted from
+	// memory); it also follows from the definition N sum w^2 / (sum w)^2
+	// with w = sin^2, whose sums are 3N/8 and N/2. 1.5 x 8000/2048 Hz.
 	fmt.Printf("enbw %.2f bins = %.3f Hz\n", r.ENBWBins, r.ENBWHz)
 	// Output:
 	// hann density FS^2/Hz 129 2 31

@@ -430,6 +430,8 @@ func TestSurveyDemoNorth(t *testing.T) {
 	for _, hm := range h.Harmonics {
 		if a, ok := left[hm.Number]; ok {
 			for ch, off := range []float64{0, -1.5} {
+				// A sine's power is half its squared peak (a definition):
+				// 10 log10(1/2) = -3.01 dB from the amplitude in dBFS.
 				if l := hm.ChannelLevels[ch]; l == nil || math.Abs(*l-(a+off-3.01)) > levelTolDB {
 					t.Errorf("harmonic %d channel %d: level %v, README %g dBFS amplitude", hm.Number, ch+1, l, a+off)
 				}

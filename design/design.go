@@ -1,6 +1,7 @@
 package design
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"sort"
@@ -78,15 +79,38 @@ type Check struct {
 // the requested Hz. A spec that cannot be realised at this rate is an
 // error; nothing is clamped.
 func Design(spec Spec, rate float64) (*Filter, error) {
+	return design(context.Background(), spec, rate)
+}
+
+func design(ctx context.Context, spec Spec, rate float64) (*Filter, error) {
 	if !(rate > 0) || math.IsInf(rate, 0) {
 		return nil, errorf(ErrInvalid, "invalid sample rate %g Hz: it must be positive and finite", rate)
 	}
 	if len(spec.Stages) == 0 {
 		return nil, errorf(ErrInvalid, "invalid spec: no stages")
 	}
+	if len(spec.Stages) > MaxStages {
+		return nil, errorf(ErrInvalid, "invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(spec.Stages), MaxStages)
+	}
+	// The notch stages' sections are counted before anything is
+	// designed, so that a chain of many large combs is refused at once.
+	notches := 0
+	for _, st := range spec.Stages {
+		if st.Family == Notch && validate(st, rate) == nil {
+			if c, _, err := notchCentres(st, rate); err == nil {
+				notches += len(c)
+			}
+		}
+	}
+	if notches > MaxSections {
+		return nil, errorf(ErrOrderLimit, "the notch stages need %d second-order sections at %g Hz, more than the limit of %d; set harmonics to fewer notches", notches, rate, MaxSections)
+	}
 	f := &Filter{SampleRate: rate, ZeroPhase: spec.ZeroPhase}
 	for i, st := range spec.Stages {
-		d, err := designStage(st, rate, spec.ZeroPhase)
+		if err := ctx.Err(); err != nil {
+			return nil, fmt.Errorf("design: stopped before stage %d: %w", i+1, err)
+		}
+		d, err := designStage(ctx, st, rate, spec.ZeroPhase, f.Stages)
 		if err != nil {
 			if len(spec.Stages) > 1 {
 				return nil, fmt.Errorf("stage %d: %w", i+1, err)
@@ -289,8 +313,8 @@ func db(h complex128) float64 {
 }
 
 // designStage designs one stage at rate through its row of the family
-// table.
-func designStage(st Stage, rate float64, zeroPhase bool) (Designed, error) {
+// table; before are the stages designed so far, for the section limit.
+func designStage(ctx context.Context, st Stage, rate float64, zeroPhase bool, before []Designed) (Designed, error) {
 	if err := validate(st, rate); err != nil {
 		return Designed{}, err
 	}
@@ -308,6 +332,12 @@ func designStage(st Stage, rate float64, zeroPhase bool) (Designed, error) {
 	}
 	if d.Sections == nil {
 		d.Sections = ToSections(d.ZPK)
+	}
+	if err := countSections(before, len(d.Sections)); err != nil {
+		return Designed{}, err
+	}
+	if err := ctx.Err(); err != nil {
+		return Designed{}, fmt.Errorf("design: stopped: %w", err)
 	}
 	d.Checks = checks(d, rate, passes)
 	return d, nil

@@ -438,7 +438,9 @@ func TestZeroPhaseDesign(t *testing.T) {
 	if got := two.EffectiveDB(1500); got > -80 {
 		t.Errorf("zero-phase stopband edge %.3f dB, want <= -80", got)
 	}
-	// Order form: the report gives the effective response at the cutoff, -6.02 dB for Butterworth.
+	// Order form: the report gives the effective response at the cutoff,
+	// -6.02 dB for Butterworth: by definition one pass is at |H|^2 = 1/2
+	// there, and forward-backward squares it, 20 log10 0.5.
 	b, err := Design(Spec{Stages: []Stage{{Family: Butterworth, Response: Highpass, Order: 4, CutoffHz: Edges{20}}}, ZeroPhase: true}, 44100)
 	if err != nil {
 		t.Fatal(err)
@@ -513,7 +515,10 @@ func TestNotchHarmonics(t *testing.T) {
 			if v := (&Filter{SampleRate: rate, ZeroPhase: zp, Stages: []Designed{d}}).EffectiveDB(ch.FrequencyHz); math.Abs(v-10*math.Log10(0.5)) > 0.01 {
 				t.Errorf("zero-phase=%v: comb at %g Hz is %.4f dB", zp, ch.FrequencyHz, v)
 			}
-			// Each edge is checked on its own notch: -3 dB to rounding.
+			// Each edge is checked on its own notch: -3 dB to rounding. The
+			// edges are defined by |H|^2 = 1/2 (10 log10 0.5) of the effective
+			// response, and a notch's centre is a zero on the unit circle at
+			// the harmonic (both definitions of the spec's keys).
 			if math.Abs(ch.DesignedDB-10*math.Log10(0.5)) > 1e-9 {
 				t.Errorf("zero-phase=%v: edge %g Hz at %.4f dB", zp, ch.FrequencyHz, ch.DesignedDB)
 			}

@@ -107,8 +107,12 @@ type Spec struct {
 // with a "stages" array. Unknown keys are errors, so that a misspelt key
 // is not silently ignored. A syntax error, an unknown key or a value of
 // the wrong type is a *SpecError with its line and column. A leading
-// UTF-8 byte-order mark is ignored.
+// UTF-8 byte-order mark is ignored. A spec of more than MaxSpecBytes, or
+// of more than MaxStages stages, is refused.
 func ParseSpec(data []byte) (Spec, error) {
+	if len(data) > MaxSpecBytes {
+		return Spec{}, errorf(ErrInvalid, "invalid spec: %d bytes, more than the limit of %d", len(data), MaxSpecBytes)
+	}
 	data = bytes.TrimPrefix(data, utf8BOM)
 	if err := locateSpecError(data); err != nil {
 		return Spec{}, err
@@ -126,6 +130,9 @@ func ParseSpec(data []byte) (Spec, error) {
 		}
 		if len(s.Stages) == 0 {
 			return Spec{}, errorf(ErrInvalid, "invalid spec: \"stages\" is empty")
+		}
+		if len(s.Stages) > MaxStages {
+			return Spec{}, errorf(ErrInvalid, "invalid spec: %d stages, more than the limit of %d; combine or remove stages", len(s.Stages), MaxStages)
 		}
 		return s, nil
 	}

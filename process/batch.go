@@ -2,6 +2,7 @@ package process
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io/fs"
 	"os"
@@ -64,7 +65,7 @@ type Item struct {
 // Plan expands inputs (files, folders and glob patterns) into items:
 // Discover, then PlanInputs.
 func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
-	found, err := Discover(inputs, opt.Recursive)
+	found, err := Discover(inputs, opt.Recursive, opt.OutputDir)
 	if err != nil {
 		return nil, err
 	}
@@ -74,8 +75,19 @@ func Plan(inputs []string, opt PlanOptions) ([]Item, error) {
 // Discover expands inputs (files, folders and glob patterns) into the
 // sorted list of input files, reading nothing but folder listings. WAV
 // files are recognised by their .wav, .bwf or .rf64 extension inside
-// folders; a file named explicitly is taken whatever its name.
-func Discover(inputs []string, recursive bool) ([]Input, error) {
+// folders; a file named explicitly is taken whatever its name. The
+// folders in skip (an output folder inside an input folder) are left out
+// of the walk, so that a run's own outputs never become its inputs.
+func Discover(inputs []string, recursive bool, skip ...string) ([]Input, error) {
+	var skipAbs []string
+	for _, d := range skip {
+		if d == "" {
+			continue
+		}
+		if a, err := filepath.Abs(d); err == nil {
+			skipAbs = append(skipAbs, a)
+		}
+	}
 	var found []Input
 	for _, arg := range inputs {
 		matches := []string{arg}
@@ -105,6 +117,14 @@ func Discover(inputs []string, recursive bool) ([]Input, error) {
 				if d.IsDir() {
 					if path != p && !recursive {
 						return filepath.SkipDir
+					}
+					if path != p && len(skipAbs) > 0 {
+						a, _ := filepath.Abs(path)
+						for _, s := range skipAbs {
+							if a == s {
+								return filepath.SkipDir
+							}
+						}
 					}
 					return nil
 				}
@@ -146,6 +166,10 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 	}
 	if opt.Shards < 0 || opt.Shards > 0 && (opt.Shard < 1 || opt.Shard > opt.Shards) {
 		return nil, fmt.Errorf("process: invalid shard %d of %d: it must be from 1 to the number of shards", opt.Shard, opt.Shards)
+	}
+	found = outsideOutput(found, opt.OutputDir)
+	if len(found) == 0 {
+		return nil, fmt.Errorf("process: no WAV files found in the inputs outside the output folder")
 	}
 	if opt.OutputFile != "" && len(found) != 1 {
 		return nil, fmt.Errorf("process: an output file takes exactly one input, got %d; give an output folder instead", len(found))
@@ -191,12 +215,38 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 			r.Close()
 		}
 		it.Source = f
-		if !opt.Replace && f.Err == nil && completeOutput(f, out) {
+		if st, err := os.Lstat(out); err == nil && st.Mode()&fs.ModeSymlink != 0 && !opt.Replace && it.Refuse == "" {
+			// A link at the output name points at a file this run did not
+			// write: never count it as the output.
+			it.Refuse = fmt.Sprintf("%s: the output %s is a symbolic link, not a file a run wrote; remove it, or give --replace to write the output in its place", f.Path, out)
+		} else if !opt.Replace && f.Err == nil && it.Refuse == "" && completeOutput(f, out) {
 			it.Skip, it.Refuse = skipOrRefuse(f, out, opt)
 		}
 		items = append(items, it)
 	}
 	return items, nil
+}
+
+// outsideOutput leaves out the inputs found inside the output folder (an
+// output folder inside a folder input, walked with -r): they are this
+// program's outputs, not inputs.
+func outsideOutput(found []Input, outDir string) []Input {
+	if outDir == "" {
+		return found
+	}
+	od, err := filepath.Abs(outDir)
+	if err != nil {
+		return found
+	}
+	var keep []Input
+	for _, f := range found {
+		a, err := filepath.Abs(f.Path)
+		if err == nil && f.Rel != filepath.Base(f.Path) && strings.HasPrefix(a, od+string(filepath.Separator)) {
+			continue
+		}
+		keep = append(keep, f)
+	}
+	return keep
 }
 
 // skipOrRefuse decides about a complete existing output.
@@ -246,8 +296,11 @@ func isWAVName(n string) bool {
 // frames, channels and the same rate as the input. Outputs are only ever
 // renamed into place once finished, so a readable one with the right
 // length is complete.
+//
+// Only a regular file counts: a symbolic link there (even to a WAV file
+// of the right shape) or a FIFO is not an output of this program.
 func completeOutput(in Input, out string) bool {
-	if st, err := os.Stat(out); err != nil || !st.Mode().IsRegular() {
+	if st, err := os.Lstat(out); err != nil || !st.Mode().IsRegular() {
 		return false
 	}
 	o, err := wavio.Open(out, nil)
@@ -277,12 +330,12 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 		workers = 1
 	}
 	res := make([]FileResult, len(items))
-	if tmpl.SpillMemoryBytes == 0 && workers > 1 {
-		// Workers share the in-memory part of their zero-phase spills, so
-		// that peak memory stays under 200 MB whatever the number of
-		// workers; past it the spill goes to its file.
-		step := int64(spillStep) * 8 // bytes
-		tmpl.SpillMemoryBytes = max(step, int64(spillMemory)/int64(workers)/step*step)
+	if tmpl.SpillMemoryBytes == 0 {
+		// Workers share the in-memory part of their zero-phase spills
+		// and its buffers, so that peak memory stays within MemoryBudget
+		// whatever the number of workers; past it the spill goes to its
+		// file.
+		tmpl.SpillMemoryBytes, tmpl.spillIOBytes = spillShare(workers)
 	}
 	next := make(chan int)
 	var wg sync.WaitGroup
@@ -297,7 +350,7 @@ func Run(ctx context.Context, items []Item, workers int, tmpl FileJob, h Hooks) 
 				case it.Skip != "":
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusSkipped, Error: it.Skip}
 				case it.Refuse != "":
-					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Refuse}
+					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Refuse, Err: errors.New(it.Refuse)}
 				case ctx.Err() != nil:
 					r = FileResult{Input: it.Input, Output: it.Output, Status: StatusFailed, Error: it.Input + ": not started: the run was interrupted"}
 				default:

@@ -43,10 +43,18 @@ type FileJob struct {
 	// (ZeroPhaseOptions.SpillMemoryBytes); Run shares the default among
 	// its workers so that the process stays within its memory bound.
 	SpillMemoryBytes int64
-	// AllowNonFinite lets NaN and infinite input samples through instead
-	// of refusing the file.
+	spillIOBytes     int // each spill file buffer (Run sets it); 0: 4 MiB
+	// AllowNonFinite replaces NaN and infinite input samples by zero,
+	// counting them per channel (FileResult.NonFinite), instead of
+	// refusing the file.
 	AllowNonFinite bool
-	// BlockFrames is the processing block; 0 means 8192.
+	// AllowShort accepts an input that ends before the frame count its
+	// header gives (a file cut short, or shortened while it is read):
+	// what was read is written, with a warning. By default such a file
+	// fails and no output is written.
+	AllowShort bool
+	// BlockFrames is the processing block; 0 means 8192 frames, fewer for
+	// more than two channels (blocks of at most 128 KiB).
 	BlockFrames int
 	// Observe, if set, is called once the input is open and the filter
 	// designed; the function it returns (if not nil) then sees every block
@@ -102,9 +110,15 @@ type FileResult struct {
 	// notch followed.
 	TrackRangeHz []float64
 	Warnings     []string
-	Seconds      float64
-	Status       string
-	Error        string
+	// NonFinite counts, per channel, the NaN and infinite input samples
+	// replaced by zero (FileJob.AllowNonFinite); nil when there were none.
+	NonFinite []int64
+	Seconds   float64
+	Status    string
+	Error     string
+	// Err is the error behind Error, for callers that tell cases apart
+	// (*ShortInputError, *FormatError, *wavio.NotRegularError, ...).
+	Err error
 }
 
 // Statuses of a FileResult.
@@ -130,12 +144,45 @@ func DefaultDitherSeed(input string, size int64) uint64 {
 // DesignFor designs spec at the sample rate of a file, naming the file
 // in the error.
 func DesignFor(spec design.Spec, rate int, name string) (*design.Filter, error) {
-	f, err := design.Design(spec, float64(rate))
+	return DesignContext(context.Background(), spec, rate, name)
+}
+
+// DesignContext is DesignFor, stopped early when ctx is cancelled.
+func DesignContext(ctx context.Context, spec design.Spec, rate int, name string) (*design.Filter, error) {
+	f, err := design.DesignContext(ctx, spec, float64(rate))
 	if err != nil {
+		if ctx.Err() != nil {
+			return nil, fmt.Errorf("%s: %w", name, err)
+		}
 		return nil, fmt.Errorf("%s: at this file's %d Hz rate: %w", name, rate, err)
 	}
 	return f, nil
 }
+
+// ShortInputError reports an input that ended before the frame count
+// its header gives (FileJob.AllowShort accepts it).
+type ShortInputError struct {
+	Input          string
+	Read, Declared int64
+}
+
+func (e *ShortInputError) Error() string {
+	return fmt.Sprintf("%s: the input ended after %d of the %d frames its header gives (cut short, or changed while it was read); no output was written", e.Input, e.Read, e.Declared)
+}
+
+// FormatError reports an output format the writer cannot produce for an
+// input (for example a sample rate whose byte rate passes 32 bits).
+type FormatError struct {
+	Input  string
+	Format wavio.Format
+	Err    error
+}
+
+func (e *FormatError) Error() string {
+	return fmt.Sprintf("%s: cannot write the output as %s: %v; choose another output sample format", e.Input, e.Format, e.Err)
+}
+
+func (e *FormatError) Unwrap() error { return e.Err }
 
 // FilterFile designs the spec at the input's sample rate, filters the
 // input and writes the output through a temporary file that is renamed
@@ -148,7 +195,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	defer func() {
 		res.Seconds = time.Since(start).Seconds()
 		if err != nil {
-			res.Error = err.Error()
+			res.Error, res.Err = err.Error(), err
 		} else {
 			res.Status = StatusDone
 		}
@@ -157,21 +204,35 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	if serr == nil && same {
 		return res, fmt.Errorf("%s: the output is the input file itself; choose another output", job.Input)
 	}
-	r, err := wavio.Open(job.Input, &wavio.ReaderOptions{AllowNonFinite: job.AllowNonFinite})
+	if err := wavio.CheckOutputPath(job.Output); err != nil {
+		return res, fmt.Errorf("%s: the output %s: %w; it was not written by this program: remove it or choose another output folder", job.Input, job.Output, err)
+	}
+	r, err := wavio.Open(job.Input, &wavio.ReaderOptions{ZeroNonFinite: job.AllowNonFinite})
 	if err != nil {
 		return res, fmt.Errorf("%s: %w", job.Input, err)
 	}
 	defer r.Close()
+	// The reader's warnings, those found while streaming included, go
+	// to the result whatever the outcome.
+	defer func() {
+		for _, w := range r.Warnings() {
+			res.Warnings = append(res.Warnings, w.String())
+		}
+	}()
 	inF := r.Format()
 	res.SampleRate, res.Channels, res.Frames = inF.SampleRate, inF.Channels, r.Frames()
 	res.Format = inF.String()
 	res.DurationS = float64(res.Frames) / float64(inF.SampleRate)
-	for _, w := range r.Warnings() {
-		res.Warnings = append(res.Warnings, w.String())
-	}
-	filt, err := DesignFor(job.Spec, inF.SampleRate, job.Input)
+	filt, err := DesignContext(ctx, job.Spec, inF.SampleRate, job.Input)
 	if err != nil {
 		return res, err
+	}
+	filtered := inF.Channels
+	if len(job.Only) > 0 {
+		filtered = len(job.Only)
+	}
+	if err := checkState(len(filt.Sections()), filtered); err != nil {
+		return res, fmt.Errorf("%s: %w", job.Input, err)
 	}
 	res.Warnings = append(res.Warnings, filt.Warnings()...)
 	for _, st := range filt.Stages {
@@ -179,7 +240,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	}
 	block := job.BlockFrames
 	if block <= 0 {
-		block = defaultBlockFrames
+		block = blockFramesFor(inF.Channels)
 	}
 	tIdx, err := trackingStage(filt)
 	if err != nil {
@@ -194,6 +255,9 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	}
 	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()
+	if err := outF.Writable(); err != nil {
+		return res, &FormatError{Input: job.Input, Format: outF, Err: err}
+	}
 	res.DesignDigest = job.DesignDigest(filt, outF)
 	seed := job.DitherSeed
 	if seed == 0 && !job.NoDither {
@@ -203,7 +267,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	}
 	w, err := wavio.Create(job.Output, wavio.WriterOptions{Format: outF, Chunks: r.Chunks(), NoDither: job.NoDither, DitherSeed: seed})
 	if err != nil {
-		return res, fmt.Errorf("%s: %w", job.Output, err)
+		return res, fmt.Errorf("%s: writing %s: %w", job.Input, job.Output, err)
 	}
 	committed := false
 	defer func() {
@@ -257,7 +321,15 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 			opt = zeroPhaseOptions(filt, res.Frames, inF.Channels, block)
 		}
 		opt.SpillMemoryBytes = job.SpillMemoryBytes
+		opt.ioBytes = job.spillIOBytes
 		opt.TempDir = job.TempDir
+		// The edge buffers come from the pool shared by every file of
+		// the process (see MemoryBudget).
+		release, err := edges.acquire(ctx, edgeBytes(opt, inF.Channels))
+		if err != nil {
+			return res, fmt.Errorf("%s: %w", job.Input, err)
+		}
+		defer release()
 		if opt.TempDir == "" {
 			opt.TempDir = dirOf(job.Output)
 		}
@@ -295,7 +367,16 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 	}
 	if n, first := r.NonFinite(); n > 0 {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("%d NaN or infinite input samples let through, the first at frame %d channel %d (counted from 1)", n, first.Frame, first.Channel+1))
+		res.NonFinite = r.NonFiniteByChannel()
+		res.Warnings = append(res.Warnings, fmt.Sprintf("%d NaN or infinite input samples replaced by zero, the first at frame %d channel %d", n, first.Frame, first.Channel+1))
+	}
+	if src.done < res.Frames {
+		if !job.AllowShort {
+			return res, &ShortInputError{Input: job.Input, Read: src.done, Declared: res.Frames}
+		}
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the input ended after %d of the %d frames its header gives; the output holds the %d read", src.done, res.Frames, src.done))
+		res.Frames = src.done
+		res.DurationS = float64(res.Frames) / float64(inF.SampleRate)
 	}
 	res.Clipped = w.Clipped()
 	if err := w.Close(); err != nil {

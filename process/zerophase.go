@@ -13,6 +13,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
 // Extension chooses how the zero-phase functions extend the signal
@@ -63,6 +64,8 @@ type ZeroPhaseOptions struct {
 	SpillMemoryBytes int64
 	// BlockFrames is the block length of the passes; 0 means 8192.
 	BlockFrames int
+
+	ioBytes int // each spill file buffer; 0 means spillIOBytes
 
 	// cascade, if set, is the filter to run instead of one built from
 	// the sections (a cascade with tracking notches).
@@ -134,7 +137,7 @@ func ZeroPhase(dst FrameSink, src FrameSource, sos []design.Section, cfg Config,
 	if opt.SpillMemoryBytes != 0 {
 		mem = max(0, opt.SpillMemoryBytes)
 	}
-	st := newSpillStore(z.ch, int(mem/8)/spillStep*spillStep, z.block, opt.TempDir)
+	st := newSpillStore(z.ch, int(mem/8)/spillStep*spillStep, z.block, opt.ioBytes, opt.TempDir)
 	defer st.close()
 	rep, err := z.run(src, st)
 	if err != nil {
@@ -545,6 +548,7 @@ type spillStore struct {
 	pending    [2]int
 	cur        int // buffer the forward pass fills next
 	fileFrames int // frames written to the file
+	unlinked   bool
 }
 
 type spillReq struct {
@@ -573,9 +577,12 @@ var (
 // newSpillStore reserves memSamples of memory (rounded down to whole
 // frames) and the two file buffers in one mapping (getSpillMemory),
 // which the system backs only as it is touched.
-func newSpillStore(ch, memSamples, block int, dir string) *spillStore {
+func newSpillStore(ch, memSamples, block, ioBytes int, dir string) *spillStore {
 	s := &spillStore{ch: ch, dir: dir, memFrames: memSamples / ch}
-	s.ioFrames = max(block, spillIOBytes/8/ch)
+	if ioBytes <= 0 {
+		ioBytes = spillIOBytes
+	}
+	s.ioFrames = max(block, ioBytes/8/ch)
 	memN, ioN := s.memFrames*ch, s.ioFrames*ch
 	all, release := getSpillMemory(memN + 2*ioN)
 	s.mem, s.release = all[:memN:memN], release
@@ -651,7 +658,9 @@ func (s *spillStore) close() {
 	}
 	if s.f != nil {
 		s.f.Close()
-		os.Remove(s.f.Name())
+		if !s.unlinked {
+			os.Remove(s.f.Name())
+		}
 		s.f = nil
 	}
 	if s.release != nil {
@@ -700,9 +709,15 @@ func (s *spillStore) memSpan(at int) []float64 {
 // previous transfer is done.
 func (s *spillStore) fileBuf() ([]float64, error) {
 	if s.f == nil {
-		f, err := os.CreateTemp(s.dir, "wavsieve-spill-*.f64")
+		f, err := wavio.CreateTemp(s.dir, "wavsieve-spill.f64")
 		if err != nil {
 			return nil, fmt.Errorf("process: zero-phase spill: %w", err)
+		}
+		// Unlinked at once: the open file lives on until it is closed,
+		// and a killed run leaves nothing on disk. (Where the system
+		// refuses, close removes it, or the next run's RemoveStale.)
+		if os.Remove(f.Name()) == nil {
+			s.unlinked = true
 		}
 		s.f = f
 		s.startIO()

@@ -9,7 +9,6 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 
 	"github.com/wavsieve/wavsieve/design"
@@ -230,8 +229,8 @@ func TestFilterFileZeroPhaseMatchesSlice(t *testing.T) {
 	}
 }
 
-// TestFilterFileFailsMidway: an output that fails in the middle (a NaN
-// let through, which 24-bit output refuses) and a cancel in the middle
+// TestFilterFileFailsMidway: an output that fails in the middle (the
+// output's observer returns an error after some blocks) and a cancel in the middle
 // stop the reading and writing goroutines, return the error, and leave
 // no output and no spill file.
 func TestFilterFileFailsMidway(t *testing.T) {
@@ -271,9 +270,20 @@ func TestFilterFileFailsMidway(t *testing.T) {
 	for _, zp := range []bool{false, true} {
 		spec.ZeroPhase = zp
 		job := FileJob{Input: in, Output: filepath.Join(outDir, "o.wav"), Spec: spec, Encoding: wavio.PCM, Bits: 24, AllowNonFinite: true, BlockFrames: 100}
-		if _, err := FilterFile(context.Background(), job); err == nil || !strings.Contains(err.Error(), "NaN") {
-			t.Errorf("zero-phase %v, NaN written to 24-bit: error %v", zp, err)
+		errMidway := errors.New("refused midway")
+		job.Observe = func(*FileJob, wavio.Format, int64, *design.Filter) func(in, out []float64) error {
+			blocks := 0
+			return func(in, out []float64) error {
+				if blocks++; blocks > 50 {
+					return errMidway
+				}
+				return nil
+			}
 		}
+		if _, err := FilterFile(context.Background(), job); !errors.Is(err, errMidway) {
+			t.Errorf("zero-phase %v, observer failing midway: error %v", zp, err)
+		}
+		job.Observe = nil
 		ctx, cancel := context.WithCancel(context.Background())
 		job.Encoding, job.Bits = wavio.Float, 64
 		job.Progress = func(done, total int64) {

@@ -365,6 +365,13 @@ func poleZeroPanel(f *design.Filter) *plot.Plot {
 		ps = append(ps, d.ZPK.Poles...)
 	}
 	title := fmt.Sprintf("Poles (x) and zeros (o), largest pole radius %.6f", f.MaxPoleRadius())
+	// A filter whose roots all crowd into a corner of the unit circle (a
+	// hum comb and a rumble high-pass: every root within a few hundredths
+	// of z = 1) would show one blob: the view is zoomed to the roots.
+	zoom, box := rootBox(append(append([]complex128(nil), zs...), ps...))
+	if zoom {
+		title = fmt.Sprintf("Poles (x) and zeros (o) near z = 1 (zoomed), largest pole radius %.6f", f.MaxPoleRadius())
+	}
 	p := newPanel(title, "real part", "imaginary part")
 
 	// Reach: the unit circle with a margin, or the farthest root within reason.
@@ -387,6 +394,9 @@ func poleZeroPanel(f *design.Filter) *plot.Plot {
 		a := 2 * math.Pi * float64(i) / (circlePoints - 1)
 		cx[i], cy[i] = math.Cos(a), math.Sin(a)
 	}
+	if zoom {
+		cx, cy = unitArc(box)
+	}
 	if l := addCurve(p, cx, cy, draw.LineStyle{Color: guideColor, Width: vg.Points(1)}); l != nil {
 		p.Legend.Add("unit circle", l)
 	}
@@ -396,7 +406,7 @@ func poleZeroPanel(f *design.Filter) *plot.Plot {
 		var pts plotter.XYs
 		for _, r := range clusterRoots(rs, coincide) {
 			x, y := real(r.z), imag(r.z)
-			if !isFinite(x) || !isFinite(y) || math.Abs(x) > reach || math.Abs(y) > reach {
+			if !isFinite(x) || !isFinite(y) || !zoom && (math.Abs(x) > reach || math.Abs(y) > reach) {
 				continue
 			}
 			pts = append(pts, plotter.XY{X: x, Y: y})
@@ -431,14 +441,63 @@ func poleZeroPanel(f *design.Filter) *plot.Plot {
 	p.Legend.Top, p.Legend.Left = true, false
 	p.X.Min, p.X.Max = -reach, reach
 	p.Y.Min, p.Y.Max = -reach, reach
+	if zoom {
+		p.X.Min, p.X.Max = box[0], box[1]
+		p.Y.Min, p.Y.Max = box[2], box[3]
+		p.X.Tick.Marker, p.Y.Tick.Marker = linearTicks{target: 4}, linearTicks{target: 4}
+	}
 	return p
 }
 
-// equalAspect widens the longer axis of p so that one unit is as long on
-// both axes when p is drawn on c. The axis sizes depend a little on the
+// zoomShare: the pole/zero view is zoomed when every root lies in a box
+// smaller than this share of the full view's side (2.3, the unit circle
+// with its margin).
+const zoomShare = 0.2
+
+// rootBox returns whether the finite roots rs crowd into a region small
+// enough to zoom to, and that region with a margin as [xmin, xmax, ymin,
+// ymax], square.
+func rootBox(rs []complex128) (bool, [4]float64) {
+	xmin, xmax, ymin, ymax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	for _, r := range rs {
+		x, y := real(r), imag(r)
+		if !isFinite(x) || !isFinite(y) {
+			continue
+		}
+		xmin, xmax = math.Min(xmin, x), math.Max(xmax, x)
+		ymin, ymax = math.Min(ymin, y), math.Max(ymax, y)
+	}
+	side := math.Max(xmax-xmin, ymax-ymin)
+	if !(side < zoomShare*2.3) {
+		return false, [4]float64{}
+	}
+	half := math.Max(side*0.6, 1e-4)
+	cx, cy := (xmin+xmax)/2, (ymin+ymax)/2
+	return true, [4]float64{cx - half, cx + half, cy - half, cy + half}
+}
+
+// unitArc returns points of the unit circle dense enough to look round
+// in box (as rootBox gives it), and reaching past it on both sides, so
+// that equalAspect's wider view still shows it.
+func unitArc(box [4]float64) (x, y []float64) {
+	side := box[1] - box[0]
+	cx, cy := (box[0]+box[1])/2, (box[2]+box[3])/2
+	mid := math.Atan2(cy, cx)
+	span := math.Min(math.Pi, 3*side) // radians either side of mid
+	const n = 400
+	for i := 0; i <= n; i++ {
+		a := mid - span + 2*span*float64(i)/n
+		x, y = append(x, math.Cos(a)), append(y, math.Sin(a))
+	}
+	return x, y
+}
+
+// equalAspect widens the longer axis of p about its centre so that one
+// unit is as long on both axes when p is drawn on c. The axis sizes depend a little on the
 // ranges through the tick labels, hence the few rounds.
 func equalAspect(p *plot.Plot, c draw.Canvas) {
-	reach := math.Min(p.X.Max, p.Y.Max)
+	cx, cy := (p.X.Min+p.X.Max)/2, (p.Y.Min+p.Y.Max)/2
+	half := math.Min(p.X.Max-p.X.Min, p.Y.Max-p.Y.Min) / 2
 	for i := 0; i < 3; i++ {
 		dc := p.DataCanvas(c)
 		w, h := float64(dc.Max.X-dc.Min.X), float64(dc.Max.Y-dc.Min.Y)
@@ -446,11 +505,11 @@ func equalAspect(p *plot.Plot, c draw.Canvas) {
 			return
 		}
 		if w >= h {
-			p.Y.Min, p.Y.Max = -reach, reach
-			p.X.Min, p.X.Max = -reach*w/h, reach*w/h
+			p.Y.Min, p.Y.Max = cy-half, cy+half
+			p.X.Min, p.X.Max = cx-half*w/h, cx+half*w/h
 		} else {
-			p.X.Min, p.X.Max = -reach, reach
-			p.Y.Min, p.Y.Max = -reach*h/w, reach*h/w
+			p.X.Min, p.X.Max = cx-half, cx+half
+			p.Y.Min, p.Y.Max = cy-half*h/w, cy+half*h/w
 		}
 	}
 }

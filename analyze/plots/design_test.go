@@ -142,3 +142,39 @@ func TestDesignWritePNG(t *testing.T) {
 		checkPNG(t, b, 10*DPI, 7.5*DPI)
 	}
 }
+
+// TestPoleZeroZoom: a hum comb with a rumble high-pass has every root
+// within a few hundredths of z = 1, so its pole/zero view is zoomed to
+// them (and still holds every root); a low-pass with zeros at z = -1 keeps
+// the full view.
+func TestPoleZeroZoom(t *testing.T) {
+	cases := []struct {
+		name string
+		spec design.Spec
+		zoom bool
+	}{
+		{"comb and high-pass", design.Spec{Stages: []design.Stage{
+			{Family: design.Butterworth, Response: design.Highpass, Order: 4, CutoffHz: design.Edges{25}},
+			{Family: design.Notch, FundamentalHz: 50, Harmonics: 7, BandwidthHz: 2}}}, true},
+		{"low-pass", testSpecs[0].spec, false},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			f := mustDesign(t, c.spec)
+			p := poleZeroPanel(f)
+			if got := strings.Contains(p.Title.Text, "zoomed"); got != c.zoom {
+				t.Fatalf("title %q: zoomed %v, want %v", p.Title.Text, got, c.zoom)
+			}
+			for _, d := range f.Stages {
+				for _, r := range append(append([]complex128(nil), d.ZPK.Zeros...), d.ZPK.Poles...) {
+					if real(r) < p.X.Min || real(r) > p.X.Max || imag(r) < p.Y.Min || imag(r) > p.Y.Max {
+						t.Errorf("root %v outside the view [%g, %g] x [%g, %g]", r, p.X.Min, p.X.Max, p.Y.Min, p.Y.Max)
+					}
+				}
+			}
+			if c.zoom && p.X.Max-p.X.Min > zoomShare*2.3 {
+				t.Errorf("zoomed view %g wide", p.X.Max-p.X.Min)
+			}
+		})
+	}
+}

@@ -1,20 +1,35 @@
 package plots
 
 import (
+	"bytes"
 	"fmt"
 	"image/color"
 	"io"
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 	"gonum.org/v1/plot/vg/vgsvg"
 )
+
+// The plots' text is Liberation Sans, a sans-serif metric-compatible with
+// Arial: the HTML report sets its page in the same family (PageFontFamily),
+// so that text in the plots and around them looks alike.
+func init() {
+	plot.DefaultFont = font.Font{Typeface: "Liberation", Variant: "Sans"}
+	plotter.DefaultFont = plot.DefaultFont
+}
+
+// PageFontFamily is the CSS font-family list that matches the plots'
+// text, for a page that embeds them.
+const PageFontFamily = `"Liberation Sans", Arial, Helvetica, sans-serif`
 
 // DPI is the resolution of PNG output in dots per inch.
 const DPI = vgimg.DefaultDPI
@@ -83,10 +98,103 @@ func render(w io.Writer, format string, width, height vg.Length, paint func(draw
 		return fmt.Errorf("plots: unsupported format %q: want \"svg\" or \"png\"", format)
 	}
 	paint(draw.New(c))
+	if format == "svg" {
+		var b bytes.Buffer
+		if _, err := c.WriteTo(&b); err != nil {
+			return fmt.Errorf("plots: writing the svg image: %w", err)
+		}
+		if _, err := w.Write(simplifyPaths(b.Bytes())); err != nil {
+			return fmt.Errorf("plots: writing the svg image: %w", err)
+		}
+		return nil
+	}
 	if _, err := c.WriteTo(w); err != nil {
 		return fmt.Errorf("plots: writing the %s image: %w", format, err)
 	}
 	return nil
+}
+
+// pathTolerance is how far, in points (1/72 inch), a simplified line may
+// stray from the drawn one: a tenth of a point, below what a screen or a
+// printer shows.
+const pathTolerance = 0.1
+
+var svgPath = regexp.MustCompile(`d="M([0-9.eE+-]+,[0-9.eE+-]+(?:L[0-9.eE+-]+,[0-9.eE+-]+)+)(Z?)"`)
+
+// simplifyPaths drops from every straight-segment path of an SVG the
+// points that lie within pathTolerance of the line through their kept
+// neighbours (Ramer-Douglas-Peucker: Douglas and Peucker, "Algorithms for
+// the reduction of the number of points required to represent a digitized
+// line or its caricature", The Canadian Cartographer 10(2), 1973), so that
+// a curve of thousands of points over a flat stretch costs a few bytes.
+func simplifyPaths(svg []byte) []byte {
+	return svgPath.ReplaceAllFunc(svg, func(m []byte) []byte {
+		sub := svgPath.FindSubmatch(m)
+		parts := strings.Split(string(sub[1]), "L")
+		if len(parts) < 3 {
+			return m
+		}
+		pts := make([][2]float64, len(parts))
+		for i, p := range parts {
+			x, y, ok := strings.Cut(p, ",")
+			if !ok {
+				return m
+			}
+			var err1, err2 error
+			pts[i][0], err1 = strconv.ParseFloat(x, 64)
+			pts[i][1], err2 = strconv.ParseFloat(y, 64)
+			if err1 != nil || err2 != nil {
+				return m
+			}
+		}
+		keep := make([]bool, len(pts))
+		keep[0], keep[len(pts)-1] = true, true
+		rdp(pts, 0, len(pts)-1, keep)
+		var b strings.Builder
+		b.WriteString(`d="M`)
+		first := true
+		for i, k := range keep {
+			if !k {
+				continue
+			}
+			if !first {
+				b.WriteByte('L')
+			}
+			first = false
+			b.WriteString(parts[i])
+		}
+		b.Write(sub[2])
+		b.WriteByte('"')
+		return []byte(b.String())
+	})
+}
+
+// rdp marks in keep the points of pts[i:j+1] needed to stay within
+// pathTolerance of the polyline (pts[i] and pts[j] are kept).
+func rdp(pts [][2]float64, i, j int, keep []bool) {
+	for j > i+1 {
+		ax, ay := pts[i][0], pts[i][1]
+		dx, dy := pts[j][0]-ax, pts[j][1]-ay
+		n := math.Hypot(dx, dy)
+		far, at := -1.0, -1
+		for k := i + 1; k < j; k++ {
+			var d float64
+			if n == 0 {
+				d = math.Hypot(pts[k][0]-ax, pts[k][1]-ay)
+			} else {
+				d = math.Abs(dy*(pts[k][0]-ax)-dx*(pts[k][1]-ay)) / n
+			}
+			if d > far {
+				far, at = d, k
+			}
+		}
+		if far <= pathTolerance {
+			return
+		}
+		keep[at] = true
+		rdp(pts, i, at, keep)
+		i = at
+	}
 }
 
 // newPanel returns a plot with the project's text sizes and a grid.

@@ -56,16 +56,33 @@ func Spectrum(w io.Writer, format string, s SpectrumPlot) error {
 	if err != nil {
 		return err
 	}
-	lo, hi, err := checkSpectrum(s)
+	top, bottom, err := spectrumPanels(s)
 	if err != nil {
 		return err
 	}
+	return render(w, format, width, height, func(c draw.Canvas) {
+		ct, cb := placeSpectrum(c, s.Title, top, bottom)
+		top.Draw(ct)
+		if bottom != nil {
+			bottom.Draw(cb)
+		}
+	})
+}
+
+// spectrumPanels builds the level panel and, for two series, the
+// difference panel (nil otherwise).
+func spectrumPanels(s SpectrumPlot) (top, bottom *plot.Plot, err error) {
+	lo, hi, err := checkSpectrum(s)
+	if err != nil {
+		return nil, nil, err
+	}
+	s = thinSpectrum(s, lo, hi)
 	colors := []color.RGBA{curveColor, secondColor}
 	ylabel := s.YLabel
 	if ylabel == "" {
 		ylabel = "level (dB)"
 	}
-	top := newPanel("", "frequency (Hz)", ylabel)
+	top = newPanel("", "frequency (Hz)", ylabel)
 	logFrequencyAxis(top, lo, hi)
 	top.Legend.Top, top.Legend.Left = true, false
 	ymin, ymax := math.Inf(1), math.Inf(-1)
@@ -99,10 +116,11 @@ func Spectrum(w io.Writer, format string, s SpectrumPlot) error {
 	top.X.Min, top.X.Max = lo, hi
 	top.Y.Min, top.Y.Max = ymin-pad, ymax+pad
 
-	var bottom *plot.Plot
 	if len(s.Series) == 2 {
 		a, b := s.Series[0], s.Series[1]
-		bottom = newPanel("", "frequency (Hz)", fmt.Sprintf("%s minus %s (dB)", nameOr(b.Name, "second"), nameOr(a.Name, "first")))
+		// The names can be long (file names): they go in the panel's
+		// title, and the axis keeps a short label that always fits.
+		bottom = newPanel("", "frequency (Hz)", "difference (dB)")
 		logFrequencyAxis(bottom, lo, hi)
 		diff := make([]float64, len(a.DB))
 		dmin, dmax := -1.0, 1.0
@@ -114,6 +132,9 @@ func Spectrum(w io.Writer, format string, s SpectrumPlot) error {
 		}
 		addCurve(bottom, []float64{lo, hi}, []float64{0, 0}, draw.LineStyle{Color: guideColor, Width: vg.Points(0.8)})
 		addCurve(bottom, positive(s.FrequenciesHz), diff, draw.LineStyle{Color: markColor, Width: vg.Points(1)})
+		bottom.Title.Text = shorten(nameOr(b.Name, "second"), legendChars) + " minus " + shorten(nameOr(a.Name, "first"), legendChars)
+		bottom.Title.TextStyle.Font.Size = vg.Points(8.5)
+		bottom.Title.Padding = vg.Points(2)
 		dmin = math.Max(dmin, dmax-spectrumSpanDB)
 		dpad := 0.05 * (dmax - dmin)
 		bottom.X.Min, bottom.X.Max = lo, hi
@@ -121,35 +142,153 @@ func Spectrum(w io.Writer, format string, s SpectrumPlot) error {
 		top.X.Label.Text = ""
 	}
 
-	return render(w, format, width, height, func(c draw.Canvas) {
-		if s.Title != "" {
-			c = drawHeading(c, []string{s.Title})
+	return top, bottom, nil
+}
+
+// placeSpectrum draws the title at the top of c and returns the canvases
+// of the two panels (cb is unused when bottom is nil).
+func placeSpectrum(c draw.Canvas, title string, top, bottom *plot.Plot) (ct, cb draw.Canvas) {
+	if title != "" {
+		c = drawHeading(c, []string{title})
+	}
+	c = draw.Crop(c, vg.Points(6), -vg.Points(12), vg.Points(6), -vg.Points(4))
+	if bottom == nil {
+		return c, c
+	}
+	return spectrumLayout(c, top, bottom)
+}
+
+// minDiffPanel is the least height of the difference panel's data area:
+// below it the curve cannot be read.
+const minDiffPanel = vg.Inch
+
+// legendChars bounds each name in the difference panel's title.
+const legendChars = 40
+
+// spectrumLayout splits c between the level panel (top) and the
+// difference panel (bottom): two thirds and one third, the difference's
+// data area at least minDiffPanel high, and the data areas lined up.
+func spectrumLayout(c draw.Canvas, top, bottom *plot.Plot) (ct, cb draw.Canvas) {
+	split := c.Min.Y + (c.Max.Y-c.Min.Y)/3
+	ct, cb = c, c
+	ct.Min.Y = split + vg.Points(6)
+	cb.Max.Y = split - vg.Points(6)
+	if d := minDiffPanel - bottom.DataCanvas(cb).Rectangle.Size().Y; d > 0 {
+		cb.Max.Y += d
+		ct.Min.Y += d
+	}
+	dt, db := top.DataCanvas(ct), bottom.DataCanvas(cb)
+	if d := dt.Min.X - db.Min.X; d > 0 {
+		cb.Min.X += d
+	} else {
+		ct.Min.X -= d
+	}
+	if d := dt.Max.X - db.Max.X; d < 0 {
+		cb.Max.X += d
+	} else {
+		ct.Max.X -= d
+	}
+	return ct, cb
+}
+
+// shorten keeps at most n characters of s, marking a cut with an ellipsis
+// in the middle (the end of a file name tells files apart).
+func shorten(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	h := (n - 1) / 2
+	return string(r[:h]) + "…" + string(r[len(r)-(n-1-h):])
+}
+
+// thinBins is the number of logarithmic frequency bins a spectrum is
+// thinned to: about one per point of the default plot width, so that
+// nothing visible is lost.
+const thinBins = 500
+
+// thinSpectrum keeps, in each of thinBins logarithmic bins between lo and
+// hi, the first and last point and those where any curve (a level, a
+// band edge, the difference of two levels) is lowest or highest, so that
+// every peak and null survives; points that are not finite are kept, as
+// gaps. A spectrum of 8193 points then draws from about 2000, and the
+// SVG shrinks as much.
+func thinSpectrum(s SpectrumPlot, lo, hi float64) SpectrumPlot {
+	n := len(s.FrequenciesHz)
+	if n <= 2*thinBins {
+		return s
+	}
+	var curves [][]float64
+	for _, ser := range s.Series {
+		curves = append(curves, ser.DB, ser.LowerDB, ser.UpperDB)
+	}
+	if len(s.Series) == 2 {
+		d := make([]float64, n)
+		for i := range d {
+			d[i] = s.Series[1].DB[i] - s.Series[0].DB[i]
 		}
-		c = draw.Crop(c, vg.Points(6), -vg.Points(12), vg.Points(6), -vg.Points(4))
-		if bottom == nil {
-			top.Draw(c)
-			return
+		curves = append(curves, d)
+	}
+	keep := make([]bool, n)
+	llo, span := math.Log(lo), math.Log(hi)-math.Log(lo)
+	bin := func(hz float64) int {
+		return min(thinBins-1, max(0, int((math.Log(hz)-llo)/span*thinBins)))
+	}
+	start := 0
+	for start < n {
+		if !(s.FrequenciesHz[start] > 0) {
+			keep[start] = true
+			start++
+			continue
 		}
-		// Two thirds for the levels, one for the difference, with the
-		// data areas lined up.
-		split := c.Min.Y + (c.Max.Y-c.Min.Y)/3
-		ct, cb := c, c
-		ct.Min.Y = split + vg.Points(6)
-		cb.Max.Y = split - vg.Points(6)
-		dt, db := top.DataCanvas(ct), bottom.DataCanvas(cb)
-		if d := dt.Min.X - db.Min.X; d > 0 {
-			cb.Min.X += d
-		} else {
-			ct.Min.X -= d
+		b := bin(s.FrequenciesHz[start])
+		end := start
+		for end < n && s.FrequenciesHz[end] > 0 && bin(s.FrequenciesHz[end]) == b {
+			end++
 		}
-		if d := dt.Max.X - db.Max.X; d < 0 {
-			cb.Max.X += d
-		} else {
-			ct.Max.X -= d
+		keep[start], keep[end-1] = true, true
+		for _, c := range curves {
+			if c == nil {
+				continue
+			}
+			lo, hi := -1, -1
+			for i := start; i < end; i++ {
+				if !isFinite(c[i]) {
+					keep[i] = true
+					continue
+				}
+				if lo < 0 || c[i] < c[lo] {
+					lo = i
+				}
+				if hi < 0 || c[i] > c[hi] {
+					hi = i
+				}
+			}
+			if lo >= 0 {
+				keep[lo], keep[hi] = true, true
+			}
 		}
-		top.Draw(ct)
-		bottom.Draw(cb)
-	})
+		start = end
+	}
+	pick := func(v []float64) []float64 {
+		if v == nil {
+			return nil
+		}
+		out := make([]float64, 0, n/4)
+		for i, k := range keep {
+			if k {
+				out = append(out, v[i])
+			}
+		}
+		return out
+	}
+	t := s
+	t.FrequenciesHz = pick(s.FrequenciesHz)
+	t.Series = make([]SpectrumSeries, len(s.Series))
+	for i, ser := range s.Series {
+		t.Series[i] = SpectrumSeries{Name: ser.Name, DB: pick(ser.DB), LowerDB: pick(ser.LowerDB), UpperDB: pick(ser.UpperDB)}
+	}
+	return t
 }
 
 // checkSpectrum checks the shape of s and returns the frequency range to

@@ -10,6 +10,9 @@ import (
 	"testing"
 
 	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgsvg"
 )
 
 // beforeAfter is a made-up pair of spectra: a falling floor with a hum
@@ -157,3 +160,76 @@ var errDiskFull = &diskFull{}
 type diskFull struct{}
 
 func (*diskFull) Error() string { return "disk full" }
+
+// TestSpectrumDifferencePanelSize: whatever the length of the series'
+// names, the difference panel keeps a data area of at least minDiffPanel
+// (1 inch) high and most of the width, the level panel stays the larger,
+// on both the SVG and the PNG canvas; and both formats render.
+func TestSpectrumDifferencePanelSize(t *testing.T) {
+	const minWidthShare = 0.7 // of the image width, for the data areas
+	names := map[string][2]string{
+		"short":     {"in", "out"},
+		"file":      {"before: reedmere-north-48k.wav (ch1)", "after: reedmere-north-48k.wav (ch1)"},
+		"very long": {strings.Repeat("a-very-long-folder-name/", 12) + "x.wav", strings.Repeat("another-long-folder/", 12) + "y.wav"},
+	}
+	canvases := map[string]func(w, h vg.Length) vg.CanvasSizer{
+		"svg": func(w, h vg.Length) vg.CanvasSizer { return vgsvg.New(w, h) },
+		"png": func(w, h vg.Length) vg.CanvasSizer { return vgimg.New(w, h) },
+	}
+	for name, pair := range names {
+		for format, mk := range canvases {
+			t.Run(name+"/"+format, func(t *testing.T) {
+				s := beforeAfter(t)
+				s.Series[0].Name, s.Series[1].Name = pair[0], pair[1]
+				s.Title = "Welch spectrum: " + pair[0]
+				top, bottom, err := spectrumPanels(s)
+				if err != nil {
+					t.Fatal(err)
+				}
+				c := draw.New(mk(spectrumWidth, spectrumHeight))
+				ct, cb := placeSpectrum(c, s.Title, top, bottom)
+				dt, db := top.DataCanvas(ct).Rectangle.Size(), bottom.DataCanvas(cb).Rectangle.Size()
+				if db.Y < minDiffPanel || db.X < minWidthShare*spectrumWidth {
+					t.Errorf("difference panel's data area %v x %v, want at least %v high and %v wide", db.X, db.Y, minDiffPanel, minWidthShare*spectrumWidth)
+				}
+				if dt.Y <= db.Y || dt.X != db.X {
+					t.Errorf("level panel %v x %v against difference %v x %v: want it taller and as wide", dt.X, dt.Y, db.X, db.Y)
+				}
+				var b bytes.Buffer
+				if err := Spectrum(&b, format, s); err != nil || b.Len() == 0 {
+					t.Errorf("%s: %v, %d bytes", format, err, b.Len())
+				}
+			})
+		}
+	}
+}
+
+// TestThinSpectrumKeepsExtremes: thinning a dense spectrum keeps its
+// peaks and nulls exactly and cuts the points drawn.
+func TestThinSpectrumKeepsExtremes(t *testing.T) {
+	const n = 8193
+	hz := make([]float64, n)
+	db := make([]float64, n)
+	for i := range hz {
+		hz[i] = float64(i) * 24000 / (n - 1)
+		db[i] = -100 + 5*math.Sin(float64(i)*0.37)
+	}
+	db[5000], db[6000] = -20, -180 // one peak, one null
+	s := SpectrumPlot{FrequenciesHz: hz, Series: []SpectrumSeries{{Name: "x", DB: db}}}
+	lo, hi, err := checkSpectrum(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	th := thinSpectrum(s, lo, hi)
+	if m := len(th.FrequenciesHz); m >= n/2 || m < thinBins {
+		t.Errorf("%d points kept of %d", m, n)
+	}
+	var peak, null bool
+	for i, f := range th.FrequenciesHz {
+		peak = peak || f == hz[5000] && th.Series[0].DB[i] == -20
+		null = null || f == hz[6000] && th.Series[0].DB[i] == -180
+	}
+	if !peak || !null {
+		t.Errorf("peak kept %v, null kept %v", peak, null)
+	}
+}

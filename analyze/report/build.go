@@ -40,6 +40,7 @@ type verifyDoc struct {
 	NotMeasured bool   `json:"not_measured"`
 	Error       string `json:"error"`
 	Checks      []struct {
+		Channel     int      `json:"channel"`
 		FrequencyHz float64  `json:"frequency_hz"`
 		Kind        string   `json:"kind"`
 		DesignedDB  *float64 `json:"designed_db"`
@@ -78,7 +79,7 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 	if err != nil {
 		return Report{}, fmt.Errorf("report: the manifest's spec: %w", err)
 	}
-	r := Report{Title: "wavsieve filtering report", Subtitle: fmt.Sprintf("%d files; spec: %s", len(m.Files), specSummary(spec))}
+	r := Report{Title: "wavsieve filtering report", Runs: []string{fmt.Sprintf("%s filtered with %s", plural(len(m.Files), "file"), specSummary(spec))}}
 	for _, st := range spec.Stages {
 		if st.Curve != "" {
 			r.Notes = append(r.Notes, "These files are weighted ("+st.Curve+"): a weighted level computed from a file is not a sound level meter's or a vibration meter's reading; the microphone or accelerometer, its calibration and the measuring chain are unknown to wavsieve.")
@@ -168,7 +169,9 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 		if filt, err := design.Design(fileSpec, float64(f.SampleRate)); err == nil {
 			var b bytes.Buffer
 			if err := plots.Design(filt, &b, "svg", plots.DesignOptions{}); err == nil {
-				sec.Plots = append(sec.Plots, Plot{Caption: fmt.Sprintf("The filter as designed at this file's %d Hz rate: magnitude with the spec's forbidden areas, phase, group delay and poles and zeros.", f.SampleRate), SVG: b.Bytes()})
+				key, _ := json.Marshal(fileSpec)
+				sec.Plots = append(sec.Plots, Plot{Caption: fmt.Sprintf("The filter as designed at this file's %d Hz rate: magnitude with the spec's forbidden areas, phase, group delay and poles and zeros.", f.SampleRate), SVG: b.Bytes(),
+					Key: fmt.Sprintf("design %s at %d Hz", key, f.SampleRate)})
 			}
 		}
 		if vd.Error != "" {
@@ -176,10 +179,21 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 		}
 		if verdict != "" && len(vd.Checks) > 0 {
 			t := Table{Caption: "Verification (measured transfer magnitude against the design and the spec): " + verdict,
-				Columns: []string{"frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
-				Numeric: []bool{true, false, true, true, true, true, false, false}}
+				Columns: []string{"channel", "frequency (Hz)", "check", "designed (dB)", "measured (dB)", "limit (dB)", "margin (dB)", "verdict", "note"},
+				Numeric: []bool{true, true, false, true, true, true, true, false, false}}
+			seen := map[string]bool{}
 			for _, c := range vd.Checks {
-				t.Rows = append(t.Rows, []string{fmtHz(c.FrequencyHz), c.Kind, designedCell(c.DesignedDB, c.DesignRange), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, c.Reason})
+				ch := ""
+				if c.Channel > 0 {
+					ch = strconv.Itoa(c.Channel)
+				}
+				row := []string{ch, fmtHz(c.FrequencyHz), c.Kind, designedCell(c.DesignedDB, c.DesignRange), fmtPtr(c.MeasuredDB), fmtPtr(c.LimitDB), fmtPtr(c.MarginDB), c.Verdict, unitSpelling.Replace(c.Reason)}
+				if k := strings.Join(row, "\x00"); seen[k] {
+					continue
+				} else {
+					seen[k] = true
+				}
+				t.Rows = append(t.Rows, row)
 				t.RowClass = append(t.RowClass, c.Verdict)
 			}
 			sec.Tables = append(sec.Tables, t)
@@ -216,7 +230,7 @@ func FromSurvey(doc []byte, dir string, opt Options) (Report, error) {
 	if err := json.Unmarshal(doc, &s); err != nil {
 		return Report{}, fmt.Errorf("report: the survey is not valid JSON: %w", err)
 	}
-	r := Report{Title: "wavsieve hum and rumble survey", Subtitle: fmt.Sprintf("%d files", len(s.Files))}
+	r := Report{Title: "wavsieve hum and rumble survey", Runs: []string{"survey of " + plural(len(s.Files), "file")}}
 	t := Table{Caption: "Files surveyed (click a heading to sort)",
 		Columns: []string{"file", "rate (Hz)", "channels", "duration (s)", "hum (Hz)", "drift (Hz)", "harmonics above floor", "error"},
 		Numeric: []bool{false, true, true, true, true, true, true, false}}
@@ -385,22 +399,43 @@ func resolve(dir, p string) string {
 }
 
 func specSummary(s design.Spec) string {
+	hz := func(e design.Edges) string {
+		v := make([]string, len(e))
+		for i, x := range e {
+			v[i] = strconv.FormatFloat(x, 'g', 6, 64)
+		}
+		return strings.Join(v, "-") + " Hz"
+	}
 	var parts []string
 	for _, st := range s.Stages {
 		switch {
 		case st.Curve != "":
 			parts = append(parts, "weighting "+st.Curve)
 		case st.Family == design.Notch:
-			parts = append(parts, fmt.Sprintf("notches at %g Hz and harmonics", st.FundamentalHz))
+			width := fmt.Sprintf("%g Hz wide", st.BandwidthHz)
+			if st.Q > 0 {
+				width = fmt.Sprintf("q %g", st.Q)
+			}
+			which := "harmonics"
+			if st.OddOnly {
+				which = "odd harmonics"
+			}
+			upTo := fmt.Sprintf("up to number %d", st.Harmonics)
+			if st.Harmonics == 0 {
+				upTo = fmt.Sprintf("below %g Hz", float64(design.DefaultNotchLimitHz))
+			}
+			parts = append(parts, fmt.Sprintf("notches at %g Hz and its %s %s, %s", st.FundamentalHz, which, upTo, width))
 		case st.Order > 0:
-			parts = append(parts, fmt.Sprintf("%s %s order %d at %v Hz", st.Family, st.Response, st.Order, []float64(st.CutoffHz)))
+			parts = append(parts, fmt.Sprintf("%s %s of order %d at %s", st.Family, st.Response, st.Order, hz(st.CutoffHz)))
+		case len(st.PassbandHz) > 0:
+			parts = append(parts, fmt.Sprintf("%s %s: passband %s within %g dB, stopband %s down %g dB", st.Family, st.Response, hz(st.PassbandHz), st.RippleDB, hz(st.StopbandHz), st.AttenuationDB))
 		default:
-			parts = append(parts, fmt.Sprintf("%s %s, passband %v Hz, stopband %v Hz, %g dB ripple, %g dB attenuation", st.Family, st.Response, []float64(st.PassbandHz), []float64(st.StopbandHz), st.RippleDB, st.AttenuationDB))
+			parts = append(parts, st.Family)
 		}
 	}
 	out := strings.Join(parts, ", then ")
 	if s.ZeroPhase {
-		out += " (zero-phase)"
+		out += ", zero-phase"
 	}
 	return out
 }
@@ -439,7 +474,19 @@ func fmtPtr(v *float64) string {
 	return fmt.Sprintf("%.2f", *v)
 }
 
+// unitSpelling writes the units of levels one way on the page: dBFS²/Hz
+// for a density level, FS²/Hz for a density.
+var unitSpelling = strings.NewReplacer("dB re FS^2/Hz", "dBFS²/Hz", "dBFS^2/Hz", "dBFS²/Hz", "FS^2/Hz", "FS²/Hz", "FS^2", "FS²")
+
 func fmtHz(v float64) string { return strconv.FormatFloat(v, 'g', 7, 64) }
+
+// plural writes a count with its noun: "1 file", "3 files".
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
+}
 
 // designedCell is the designed response with the design range the
 // verdict used, when that range is wider than the printed value.

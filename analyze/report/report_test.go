@@ -61,7 +61,7 @@ func TestFromApply(t *testing.T) {
 	if n := strings.Count(s, "<svg"); n != 2 {
 		t.Errorf("%d inline SVG plots, want 2", n)
 	}
-	for _, want := range []string{"in.wav", "bad.wav", "failed: bad.wav", "Verification", "-45.50", `class="pass"`, `class="failed"`, "table class=\"sortable\"", "no calibrated certification"} {
+	for _, want := range []string{"in.wav", "bad.wav", "failed: bad.wav", "Verification", "-45.50", `class="pass"`, `class="failed"`, "class=\"sortable", "no calibrated certification"} {
 		if !strings.Contains(s, want) {
 			t.Errorf("report lacks %q", want)
 		}
@@ -116,6 +116,51 @@ func TestBadDocuments(t *testing.T) {
 		t.Errorf("no files: %v", err)
 	}
 	_ = os.Remove
+}
+
+// TestDrawOnceAndTables: two files at one rate with one spec draw their
+// design once (the second links to the first), the verification table has
+// a channel column and no repeated row, and the runs are listed once each.
+func TestDrawOnceAndTables(t *testing.T) {
+	dir := t.TempDir()
+	spec := map[string]any{"family": "notch", "fundamental_hz": 50, "bandwidth_hz": 2, "harmonics": 3}
+	check := func(ch int) map[string]any {
+		return map[string]any{"channel": ch, "frequency_hz": 50, "kind": "notch", "designed_db": -300.0, "measured_db": -45.5, "limit_db": -40.0, "margin_db": 5.5, "verdict": "pass"}
+	}
+	var files []any
+	for _, name := range []string{"a", "b"} {
+		in, out := filepath.Join(dir, name+"-in.wav"), filepath.Join(dir, name+"-out.wav")
+		writeWAV(t, in, 8000, 0.1)
+		writeWAV(t, out, 8000, 0)
+		files = append(files, map[string]any{"input": in, "output": out, "sample_rate_hz": 8000, "channels": 2, "frames": 4000, "status": "done",
+			"verify": map[string]any{"pass": true, "checks": []any{check(1), check(2), check(2)}}})
+	}
+	b, _ := json.Marshal(map[string]any{"spec": spec, "files": files})
+	r, err := FromApply(b, "", Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	again, _ := FromApply(b, "", Options{})
+	r.Merge(again)
+	if len(r.Runs) != 1 {
+		t.Errorf("runs %q, want the one run once", r.Runs)
+	}
+	var html bytes.Buffer
+	if err := Write(&html, r); err != nil {
+		t.Fatal(err)
+	}
+	s := html.String()
+	// Four file sections: four spectra, one design figure, three links.
+	if n, links := strings.Count(s, "<svg"), strings.Count(s, "The same figure as for <a href=\"#plot-0-1\">a-in.wav</a>"); n != 5 || links != 3 {
+		t.Errorf("%d SVG plots and %d links to the first design, want 5 and 3", n, links)
+	}
+	sec := s[strings.Index(s, `id="file-0"`):strings.Index(s, `id="file-1"`)]
+	if !strings.Contains(sec, "<th data-numeric=\"1\">channel</th>") {
+		t.Error("the verification table has no channel column")
+	}
+	if n := strings.Count(sec, `<tr class="pass">`); n != 2 {
+		t.Errorf("%d verification rows for channels 1, 2 and a repeat of 2; want 2", n)
+	}
 }
 
 // TestVerdictWords: the report shows the verification's own verdict, and

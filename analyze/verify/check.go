@@ -336,8 +336,9 @@ type Check struct {
 	Verdict     string   `json:"verdict"`
 	Reason      string   `json:"reason"`
 
-	// Beyond the contract: the limits on both sides (mask rows), the mask
-	// row's label, the reading's segment length, averages and resolution.
+	// Beyond the contract: the limits from below and from above (null or
+	// left out where there is none), the mask row's label, the reading's
+	// segment length, averages and resolution.
 	LowerLimitDB *float64 `json:"lower_limit_db,omitempty"`
 	UpperLimitDB *float64 `json:"upper_limit_db,omitempty"`
 	Label        string   `json:"label,omitempty"`

@@ -26,9 +26,7 @@ func (s *Session) judge(pi, ci, channel int) Check {
 	c.DesignedDB = num(pl.designed)
 	lo, hi := p.LowerDB+pl.offset, p.UpperDB+pl.offset
 	limited := p.HasLimit()
-	if p.Kind == KindMask {
-		c.LowerLimitDB, c.UpperLimitDB = num(lo), num(hi)
-	}
+	c.LowerLimitDB, c.UpperLimitDB = num(lo), num(hi)
 	if limited {
 		if !math.IsInf(lo, -1) {
 			c.LimitDB = num(lo)

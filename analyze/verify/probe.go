@@ -9,7 +9,9 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"runtime"
 	"sort"
+	"sync"
 
 	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process"
@@ -174,46 +176,46 @@ func ToneProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
 	for _, c := range NewSessionChannels(ch.In.Channels, o.Channels) {
 		res.Channels = append(res.Channels, c+1)
 	}
-	pin, pout := filepath.Join(dir, "tone-in.wav"), filepath.Join(dir, "tone-out.wav")
-	for _, grp := range toneGroups(f, Points(f), o.Segment) {
-		seg := o.Segment
-		var hz []float64
-		for _, p := range grp {
-			seg = max(seg, toneSegment(f.SampleRate, p.FrequencyHz))
-			hz = append(hz, p.FrequencyHz)
+	// The groups are independent runs: a few at once, each in its own
+	// files, the first error cancelling the others.
+	groups := toneGroups(f, Points(f), o.Segment)
+	results := make([]*Result, len(groups))
+	frames := make([]int64, len(groups))
+	errs := make([]error, len(groups))
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < min(probeWorkers(), len(groups)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for gi := range next {
+				results[gi], frames[gi], errs[gi] = toneGroup(ctx, ch, f, groups[gi], skip, o, filepath.Join(dir, fmt.Sprintf("group-%d", gi)))
+				if errs[gi] != nil {
+					cancel()
+				}
+			}
+		}()
+	}
+	for gi := range groups {
+		next <- gi
+	}
+	close(next)
+	wg.Wait()
+	// The error that stopped the run, rather than the cancellations it
+	// caused.
+	var first error
+	for _, e := range errs {
+		if e != nil && (first == nil || errors.Is(first, context.Canceled) && !errors.Is(e, context.Canceled)) {
+			first = e
 		}
-		frames := 2*skip + int64(seg)*(toneSegments+1)/2
-		og := o
-		og.Segment = seg
-		s, err := NewSession(f, grp, ch.In.Channels, min(frames, maxProbeFrames), og)
-		if err != nil {
-			return nil, err
-		}
-		if frames <= maxProbeFrames {
-			if err := writeTones(pin, ch.In, frames, hz, ch.DitherSeed); err != nil {
-				return nil, err
-			}
-			job := process.FileJob{Input: pin, Output: pout, Spec: ch.Spec, Encoding: ch.Encoding, Bits: ch.Bits, NoDither: ch.NoDither,
-				DitherSeed: ch.DitherSeed, Only: ch.Only, TempDir: dir}
-			fr, err := process.FilterFile(ctx, job)
-			if err != nil {
-				return nil, fmt.Errorf("verify: probe: %w", err)
-			}
-			if n := sum(fr.Clipped); n > 0 {
-				return nil, fmt.Errorf("verify: %w: %d samples of the tones at %v Hz clipped at full scale; the filter's gain is too high for a -6 dBFS probe", ErrProbeClipped, n, hz)
-			}
-			if err := feedPair(ctx, s, pin, pout); err != nil {
-				return nil, err
-			}
-		}
-		r := s.Result(ch.Name, "", "tone probe")
-		for i := range r.Checks {
-			if frames > maxProbeFrames {
-				r.Checks[i].Verdict = Unmeasurable
-				r.Checks[i].Reason = fmt.Sprintf("the tone would need %d frames to settle and be read, more than the probe's %d", frames, maxProbeFrames)
-			}
-		}
-		res.Frames += frames
+	}
+	if first != nil {
+		return nil, first
+	}
+	for gi, r := range results {
+		res.Frames += frames[gi]
 		res.Checks = append(res.Checks, r.Checks...)
 	}
 	sort.SliceStable(res.Checks, func(i, j int) bool {
@@ -222,6 +224,57 @@ func ToneProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
 	})
 	res.Finish()
 	return res, nil
+}
+
+// probeWorkers is how many tone groups run at once: up to the processors,
+// at most 4 (each holds a file pair in a temporary folder).
+func probeWorkers() int { return max(1, min(runtime.NumCPU(), 4)) }
+
+// toneGroup plays the tones of one group through the chain in files under
+// base (a path prefix) and reads them.
+func toneGroup(ctx context.Context, ch Chain, f *design.Filter, grp []Point, skip int64, o Options, base string) (*Result, int64, error) {
+	seg := o.Segment
+	var hz []float64
+	for _, p := range grp {
+		seg = max(seg, toneSegment(f.SampleRate, p.FrequencyHz))
+		hz = append(hz, p.FrequencyHz)
+	}
+	frames := 2*skip + int64(seg)*(toneSegments+1)/2
+	og := o
+	og.Segment = seg
+	s, err := NewSession(f, grp, ch.In.Channels, min(frames, maxProbeFrames), og)
+	if err != nil {
+		return nil, 0, err
+	}
+	if frames <= maxProbeFrames {
+		pin, pout := base+"-in.wav", base+"-out.wav"
+		defer os.Remove(pin)
+		defer os.Remove(pout)
+		if err := writeTones(pin, ch.In, frames, hz, ch.DitherSeed); err != nil {
+			return nil, 0, err
+		}
+		job := process.FileJob{Input: pin, Output: pout, Spec: ch.Spec, Encoding: ch.Encoding, Bits: ch.Bits, NoDither: ch.NoDither,
+			DitherSeed: ch.DitherSeed, Only: ch.Only, TempDir: filepath.Dir(base)}
+		fr, err := process.FilterFile(ctx, job)
+		if err != nil {
+			return nil, 0, fmt.Errorf("verify: probe: %w", err)
+		}
+		if n := sum(fr.Clipped); n > 0 {
+			return nil, 0, fmt.Errorf("verify: %w: %d samples of the tones at %v Hz clipped at full scale; the filter's gain is too high for a -6 dBFS probe", ErrProbeClipped, n, hz)
+		}
+		if err := feedPair(ctx, s, pin, pout); err != nil {
+			return nil, 0, err
+		}
+	}
+	r := s.Result(ch.Name, "", "tone probe")
+	if frames > maxProbeFrames {
+		for i := range r.Checks {
+			r.Checks[i].Verdict = Unmeasurable
+			r.Checks[i].Reason = fmt.Sprintf("the tone would need %d frames to settle and be read, more than the probe's %d", frames, maxProbeFrames)
+			r.Checks[i].MeasuredDB, r.Checks[i].IntervalDB, r.Checks[i].MarginDB = nil, nil, nil
+		}
+	}
+	return r, frames, nil
 }
 
 // toneLeak is the largest relative error one tone may put into another's

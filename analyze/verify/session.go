@@ -278,10 +278,10 @@ func (s *Session) framesFor(seg int) int64 {
 func (s *Session) planPoint(p Point, usable int64) plan {
 	pl := plan{p: p, omega: 2 * math.Pi * p.FrequencyHz / s.fs}
 	pl.designed = s.f.EffectiveDB(p.FrequencyHz)
+	pl.offset = pl.designed - s.stageDB(p.Stage, p.FrequencyHz)
 	if pl.designed < zeroDB {
 		pl.designed = math.Inf(-1) // a zero on the unit circle, to rounding
 	}
-	pl.offset = pl.designed - s.stageDB(p.Stage, p.FrequencyHz)
 	notch := p.Kind == KindNotch
 	fits := func(seg int) bool { return int64(seg)*(MinSegments+1)/2 <= usable }
 	if s.o.Tone {

@@ -3,18 +3,21 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"os"
 	"os/signal"
 	"path/filepath"
 	"runtime"
+	"runtime/debug"
 	"strconv"
 	"strings"
 	"syscall"
 
 	"github.com/spf13/pflag"
 	"github.com/wavsieve/wavsieve/analyze/verify"
+	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/runrecord"
 	"github.com/wavsieve/wavsieve/process/wavio"
@@ -29,8 +32,8 @@ Inputs are WAV files, folders (with --recursive, their sub-folders too) and
 glob patterns. The outputs mirror the input tree under the --output folder;
 for a single input file --output may name the output file instead. Inputs
 are never modified, outputs are written to a temporary file and renamed into
-place when complete, and an output that already exists complete is skipped
-unless --replace is given. A file whose rate cannot take the spec (an edge
+place when complete, and an output that already exists complete, made with
+the same design, is skipped unless --replace is given. A file whose rate cannot take the spec (an edge
 at or above its Nyquist frequency) fails alone; the others go on.
 
 With --zero-phase the filter runs forward, then backward over a temporary
@@ -50,10 +53,9 @@ is skipped only when its digest matches, and refused otherwise (give
 K-th, so that N machines given the same command share an archive: in a
 Slurm array of N tasks, --shard $((SLURM_ARRAY_TASK_ID+1))/N (N written
 out, so that resubmitting one task keeps the shares); in a Kubernetes
-indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each
-share writes its own record, wavsieve-manifest.K-of-N.json, holding the
-whole input list; 'wavsieve gather DIR' merges them and lists what is
-missing.
+indexed Job, --shard $((JOB_COMPLETION_INDEX+1))/N. Each share writes
+its own record, wavsieve-manifest.K-of-N.json, holding the whole input
+list; 'wavsieve gather DIR' merges them and lists what is missing.
 
 --weighting CURVE adds a standard weighting (A, C, Z; Wb ... Wm) after the
 other stages, or alone ('wavsieve help weighting'). A level computed from
@@ -95,9 +97,10 @@ type applyOpts struct {
 	seed            uint64
 	channels        string
 	steady          bool
-	trackPerChannel bool
 	tempDir         string
 	nonFinite       bool
+	allowShort      bool
+	trackPerChannel bool
 	noProgress      bool
 }
 
@@ -113,7 +116,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.shard, "shard", "", "process only share `K/N` of the inputs (see above)")
 	fs.BoolVarP(&o.dryRun, "dry-run", "n", false, "print the design for every file and write nothing")
 	fs.BoolVar(&o.asJSON, "json", false, "print the run manifest as JSON on stdout")
-	fs.StringVar(&o.manifest, "manifest", "", "write the manifest to `base`.json and base.csv (default: in the output folder)")
+	fs.StringVar(&o.manifest, "manifest", "", "write the run record to `base`.json and base.csv, base.K-of-N with --shard (default: wavsieve-manifest in the output folder)")
 	fs.StringVar(&o.sampleFmt, "sample-format", "", "output samples: pcm16, pcm24, pcm32, float32 or float64 (default: the input's)")
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
 	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
@@ -121,7 +124,8 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.BoolVar(&o.trackPerChannel, "track-per-channel", false, "with --track: follow the hum in each channel on its own (default: one track from all channels)")
 	fs.BoolVar(&o.steady, "steady-start", false, "causal runs start settled on the first sample, so a DC offset gives no thump")
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")
-	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "let NaN and infinite float samples through instead of refusing the file")
+	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "replace NaN and infinite float samples by zero (counted per channel in the manifest) instead of refusing the file")
+	fs.BoolVar(&o.allowShort, "allow-short", false, "write what was read of an input that ends before its header's frame count, with a warning, instead of failing it")
 	fs.BoolVar(&o.noProgress, "no-progress", false, "no progress display on a terminal")
 	verifyRuns := fs.Bool("verify", false, "measure every file written against the spec (as wavsieve verify) and record the verdicts (pass, fail, inconclusive) in the manifest; a failed verification makes the exit code 1")
 	help := fs.BoolP("help", "h", false, "show this help")
@@ -135,6 +139,12 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	spec, err := o.sf.spec(fs)
 	if err != nil {
+		return report(stderr, "apply", err, "")
+	}
+	// What can be checked without a file's rate is checked before
+	// anything is created: a spec that fails at every rate is a usage
+	// error.
+	if err := o.sf.check(spec); err != nil {
 		return report(stderr, "apply", err, "")
 	}
 	if fs.NArg() == 0 {
@@ -157,7 +167,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if o.workers < 1 {
 		return report(stderr, "apply", usagef("--workers must be at least 1"), "")
 	}
-	tmpl := process.FileJob{Spec: spec, NoDither: o.noDither, DitherSeed: o.seed, SteadyStart: o.steady, TempDir: o.tempDir, AllowNonFinite: o.nonFinite}
+	tmpl := process.FileJob{Spec: spec, NoDither: o.noDither, DitherSeed: o.seed, SteadyStart: o.steady, TempDir: o.tempDir, AllowNonFinite: o.nonFinite, AllowShort: o.allowShort}
 	tmpl.NewTracker, tmpl.TrackPerChannel = newHumTracker, o.trackPerChannel
 	if o.sampleFmt != "" {
 		enc, bits, err := parseSampleFormat(o.sampleFmt)
@@ -179,7 +189,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	} else {
 		popt.OutputDir = o.output
 	}
-	found, err := process.Discover(fs.Args(), popt.Recursive)
+	found, err := process.Discover(fs.Args(), popt.Recursive, popt.OutputDir)
 	if err != nil {
 		return report(stderr, "apply", err, "")
 	}
@@ -198,8 +208,15 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	popt.Job = &tmpl
 
+	// From here on Ctrl-C and SIGTERM stop the run at the next check
+	// (between design stages, between blocks) and the run cleans up; a
+	// second one ends the process at once.
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
+	go func() {
+		<-ctx.Done()
+		stop()
+	}()
 	// Runs with one record are serialised from planning to the record's
 	// writing, so that the record always describes the files on disk.
 	// undo takes back the folder the lock made when the run stops before
@@ -247,8 +264,10 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "apply", err, "")
 	}
 	if o.dryRun {
-		return dryRun(items, tmpl, o.asJSON, stdout, stderr)
+		return dryRun(ctx, items, tmpl, o.asJSON, stdout, stderr)
 	}
+	holdMemory()
+	removeStale(items, []string{o.tempDir, filepath.Dir(base)}, stderr)
 
 	var inline *verify.Observer
 	if *verifyRuns {
@@ -258,6 +277,19 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	prog := newProgress(stderr, items, !o.noProgress)
 	results := process.Run(ctx, items, o.workers, tmpl, prog.hooks())
 	prog.finish()
+	for i, r := range results {
+		// A value given by a flag is named by its flag, not its spec key:
+		// a file that failed at its rate is designed again (it takes
+		// microseconds) for the typed error.
+		if r.Status != process.StatusFailed || r.SampleRate == 0 || o.sf.file != "" {
+			continue
+		}
+		if _, err := design.Design(spec, float64(r.SampleRate)); err != nil {
+			if _, ok := design.ValueOf(err); ok {
+				results[i].Error = fmt.Sprintf("%s: at this file's %d Hz rate: %v", r.Input, r.SampleRate, o.sf.valueError(err))
+			}
+		}
+	}
 
 	var verified []*verify.Result
 	verdict := ""
@@ -302,6 +334,9 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		case process.StatusFailed:
 			failed++
 			fmt.Fprintf(stderr, "wavsieve apply: %s\n", r.Error)
+			if h := failureHint(r.Err); h != "" {
+				fmt.Fprintf(stderr, "hint: %s\n", h)
+			}
 		case process.StatusDone:
 			done++
 			for _, w := range r.Warnings {
@@ -427,7 +462,7 @@ func isWAVFile(p string) bool {
 
 // dryRun designs the spec at every input's rate and prints what would be
 // done; nothing is written.
-func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, stderr io.Writer) int {
+func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, asJSON bool, stdout, stderr io.Writer) int {
 	var files []process.FileResult
 	failed := 0
 	for _, it := range items {
@@ -447,7 +482,7 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 		f := it.Source.Format
 		r.SampleRate, r.Channels, r.Frames, r.Format = f.SampleRate, f.Channels, it.Source.Frames, f.String()
 		r.DurationS = float64(r.Frames) / float64(f.SampleRate)
-		filt, err := process.DesignFor(tmpl.Spec, f.SampleRate, it.Input)
+		filt, err := process.DesignContext(ctx, tmpl.Spec, f.SampleRate, it.Input)
 		if err != nil {
 			r.Status, r.Error = process.StatusFailed, err.Error()
 			failed++
@@ -482,6 +517,10 @@ func dryRun(items []process.Item, tmpl process.FileJob, asJSON bool, stdout, std
 			}
 		}
 	}
+	if ctx.Err() != nil {
+		fmt.Fprintln(stderr, "wavsieve apply: interrupted")
+		return exitFail
+	}
 	if failed > 0 {
 		return exitFail
 	}
@@ -508,6 +547,53 @@ func stageLine(s process.StageSummary) string {
 }
 
 func openWAV(name string) (*wavio.Reader, error) { return wavio.Open(name, nil) }
+
+// failureHint says what to do about a failed file, when there is
+// something to say.
+func failureHint(err error) string {
+	var fe *process.FormatError
+	var se *process.ShortInputError
+	var nr *wavio.NotRegularError
+	switch {
+	case errors.As(err, &fe):
+		return "choose the output format with --sample-format (pcm16, pcm24, pcm32, float32 or float64)"
+	case errors.As(err, &se):
+		return "check the input; --allow-short writes what could be read, with a warning"
+	case errors.As(err, &nr):
+		return "only regular files are read and written; move it away or name another file"
+	}
+	return ""
+}
+
+// removeStale removes the temporary files that killed runs left in the
+// output folders of items and in the other folders given, and says so.
+func removeStale(items []process.Item, more []string, stderr io.Writer) {
+	seen := map[string]bool{}
+	dirs := more
+	for _, it := range items {
+		dirs = append(dirs, filepath.Dir(it.Output))
+	}
+	for _, d := range dirs {
+		if d == "" || seen[d] {
+			continue
+		}
+		seen[d] = true
+		gone, _ := wavio.RemoveStale(d)
+		for _, g := range gone {
+			fmt.Fprintf(stderr, "wavsieve apply: removed %s, a temporary file left by an interrupted run\n", g)
+		}
+	}
+}
+
+// holdMemory sets the Go runtime's soft memory limit for a batch run, so
+// that the collector keeps the heap within its part of
+// process.MemoryBudget (the in-memory spills lie outside the heap),
+// unless GOMEMLIMIT says otherwise.
+func holdMemory() {
+	if os.Getenv("GOMEMLIMIT") == "" {
+		debug.SetMemoryLimit(process.MemoryBudget / 2)
+	}
+}
 
 // programName is how the record names this program in the commands it
 // keeps: the path it was started by when that is a wavsieve, so that a

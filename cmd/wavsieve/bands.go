@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"context"
 	"encoding/csv"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -47,7 +46,10 @@ inside the class 1 mask of IEC 61260-1:2014 (Table 1). The lower bands
 run on the signal decimated by octaves, behind an anti-alias low-pass.
 
 With --interval SECONDS the levels are also given over consecutive
-stretches of that length, as rows (the last may be shorter).
+stretches of that length, as rows (the last may be shorter). The band
+filters delay and smear what they pass (the 25 Hz third by about a tenth
+of a second), so a short event shows in the low bands a little later than
+in the high ones.
 
 Units: by default levels are in dB re full scale, where a full-scale sine
 reads -3.01 dB. A calibration turns them into physical levels, re the
@@ -77,7 +79,8 @@ of each file's levels there (PNG, or SVG with --plot-format svg).
 ` + bandsCaution + `
 
 Inputs are never modified. A file that cannot be read is reported and the
-others go on. Exit codes: 0 every file measured, 1 some failed, 2 usage
+others go on. Exit codes: 0 every file measured (and charted), 1 some file
+failed or its chart could not be written, 2 usage
 error.
 
 Examples:
@@ -144,7 +147,8 @@ type bandsFile struct {
 	Warnings   []string        `json:"warnings,omitempty"`
 	Error      string          `json:"error,omitempty"`
 
-	labels []string // nominal labels of the bands, for the table
+	labels  []string // nominal labels of the bands, for the table
+	plotErr bool     // the bar chart asked for could not be written
 }
 
 type bandsDoc struct {
@@ -243,8 +247,10 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	failed := 0
 	for _, f := range doc.Files {
-		if f.Error != "" {
+		if f.Error != "" || f.plotErr {
 			failed++
+		}
+		if f.Error != "" {
 			fmt.Fprintf(stderr, "wavsieve bands: %s\n", f.Error)
 		}
 		for _, w := range f.Warnings {
@@ -257,9 +263,7 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	switch {
 	case *asJSON:
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "bands", err, "")
 		}
 	case *asCSV:
@@ -364,7 +368,7 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 			if errors.Is(err, analyze.ErrNoBands) {
 				bf.Error = fmt.Sprintf("%s: no 1/%d-octave band lies between --from and --to below the Nyquist frequency of this %d Hz file; widen the range", path, opt.fraction, f.SampleRate)
 			} else {
-				bf.Error = fmt.Sprintf("%s: %v", path, strings.TrimPrefix(err.Error(), "design: "))
+				bf.Error = fmt.Sprintf("%s: %v", path, strings.TrimPrefix(strings.TrimPrefix(err.Error(), "analyze: "), "design: "))
 			}
 			return bf
 		}
@@ -398,6 +402,9 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 		bf.labels = append(bf.labels, b.Label)
 		bf.Filters = append(bf.Filters, bandFilter{MidbandHz: b.NominalHz, Order: bank.Filters()[i].Order, RateHz: rates[i]})
 	}
+	if whole.Frames == 0 {
+		bf.Warnings = append(bf.Warnings, "the file holds no samples: no level to give")
+	}
 	bf.Frames = whole.Frames
 	bf.DurationS = float64(whole.Frames) / bf.SampleRate
 	bf.Channels = channelLevels(whole, bands, opt.cal)
@@ -421,6 +428,7 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 		name, err := writeBandsPlot(bf, bands, opt)
 		if err != nil {
 			bf.Warnings = append(bf.Warnings, fmt.Sprintf("bar chart not written: %v", err))
+			bf.plotErr = true
 		} else {
 			bf.Plot = name
 		}
@@ -606,4 +614,21 @@ func printBandStage(w io.Writer, f *design.Filter, i int, st design.Designed) {
 		fmt.Fprintf(w, "  %-36s %12.4f %12.3f %7s..%-7.1f %s\n", m.Label, m.FrequencyHz, v, lo, m.UpperDB, ok)
 	}
 	fmt.Fprintf(w, "  mask: %s; points above the Nyquist frequency are left out\n", st.Mask[0].Source)
+}
+
+// maskRows gives the JSON rows of a stage's tolerance mask (a band
+// stage's class 1 mask) with the designed response at each; nil when the
+// stage has none.
+func maskRows(f *design.Filter, st design.Designed) []maskJSON {
+	one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
+	var rows []maskJSON
+	for _, m := range st.Mask {
+		v := one.MagnitudeDB(m.FrequencyHz)
+		rows = append(rows, maskJSON{
+			Label: m.Label, FrequencyHz: m.FrequencyHz, TargetDB: finitePtr(m.TargetDB),
+			LowerDB: finitePtr(m.LowerDB), UpperDB: finitePtr(m.UpperDB),
+			DesignedDB: v, Within: m.Within(v), Source: m.Source,
+		})
+	}
+	return rows
 }

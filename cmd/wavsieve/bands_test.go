@@ -282,6 +282,22 @@ func TestBandStageDesignApplyVerify(t *testing.T) {
 	if code != exitOK || !strings.Contains(out, "1/3-octave band 1k Hz") || strings.Contains(out, "OUTSIDE") {
 		t.Fatalf("design: exit %d, %s %s", code, out, errs)
 	}
+	code, out, errs = runCmd(t, "design", "--spec", spec, "--rate", "44100", "--json")
+	var dj struct {
+		Stages []struct {
+			Mask []struct {
+				Within bool `json:"within"`
+			} `json:"mask"`
+		} `json:"stages"`
+	}
+	if err := json.Unmarshal([]byte(out), &dj); code != exitOK || err != nil || len(dj.Stages[0].Mask) != 17 {
+		t.Fatalf("design --json: exit %d, %v, %s", code, err, errs)
+	}
+	for i, m := range dj.Stages[0].Mask {
+		if !m.Within {
+			t.Errorf("design --json: mask row %d not within", i)
+		}
+	}
 	code, out, errs = runCmd(t, "verify", "--spec", spec, "--probe", "--rate", "44100", "--json")
 	if code != exitOK {
 		t.Fatalf("verify --probe: exit %d: %s", code, errs)

@@ -208,7 +208,9 @@ func writeFileAtomic(name string, data []byte) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(name)+".tmp-*")
+	// A locked temporary file that a later run recognises and removes if
+	// this one is killed before the rename.
+	tmp, err := wavio.CreateTemp(dir, filepath.Base(name))
 	if err != nil {
 		return err
 	}
@@ -267,6 +269,9 @@ func designDocument(f *design.Filter, source string) designResult {
 			sj.Checks = append(sj.Checks, cj)
 		}
 		sj.Weighting, sj.Mask = weightingDocument(f, st)
+		if sj.Mask == nil {
+			sj.Mask = maskRows(f, st)
+		}
 		res.Stages = append(res.Stages, sj)
 	}
 	lo, hi := f.PassbandGroupDelay()

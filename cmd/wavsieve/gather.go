@@ -26,7 +26,8 @@ wavsieve-manifest.K-of-N.json, each holding the whole sorted input list
 and its share. gather merges every share's record found in <dir> into
 one record of the whole run, wavsieve-manifest.json and .csv in <dir>
 (rows already there are kept, keyed by output), and checks that the
-shares covered every input exactly once.
+shares covered every input exactly once. (Shares given --manifest keep
+their records where it says, and gather does not look for them there.)
 
 When inputs are missing (a share that never ran, or files that failed),
 it prints, for each share concerned, the command that redoes it: a share
@@ -98,9 +99,7 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		if doc.Resubmit == nil {
 			doc.Resubmit = []runrecord.Resubmit{}
 		}
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(doc); err != nil {
+		if err := writeJSON(stdout, doc, true); err != nil {
 			return report(stderr, "gather", err, "")
 		}
 	}

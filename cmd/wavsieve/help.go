@@ -181,10 +181,10 @@ Stage keys (units in brackets):
   tracking        true or false, notch only: the notches follow the hum
                   measured in each file (fundamental_hz is then where it is
                   looked for, within 2 Hz); flag --track
-  fraction        [b] band only: the bands are 1/b octave: 1, 2, 3, 6, 12 or 24
-  midband_hz      [Hz] band only: nominal or exact IEC 61260-1 mid-band
-                  frequency of the band, e.g. 1000, 31.5 or 12500
   curve           weighting only: A, C, Z, Wb, Wc, Wd, We, Wf, Wh, Wj, Wk or Wm
+  fraction        [count] band only: b of a 1/b-octave band, 1, 2, 3, 6, 12 or 24
+  midband_hz      [Hz] band only: the band's nominal or exact mid-band
+                  frequency, e.g. 1000 or 31.5
 
 A frequency is a number, or an array of one or two numbers. Every edge must
 lie below the Nyquist frequency (half the sample rate) of each file the spec
@@ -238,6 +238,11 @@ wavsieve apply --json (and the run record wavsieve-manifest.json)
   The same rows are written as wavsieve-manifest.csv; runs into one
   folder add to one record, keyed by output.
 
+wavsieve gather --json
+  {"version", "files": [the merged record's rows, as apply's],
+   "missing": [inputs no share did], "failed", "shares", "resubmit",
+   "done_twice", "record": the merged record's file}
+
 wavsieve spectrum --json
   {"version", "file", "sample_rate_hz", "window", "segment", "overlap",
    "scaling": "density" | "spectrum", "units", "detrend", "average",
@@ -263,17 +268,40 @@ wavsieve survey --json
               "suggested_spec": {a spec} | null, "notes", "warnings",
               "error"}]}
 
+wavsieve bands --json
+  {"version", "caution",
+   "files": [{"path", "sample_rate_hz", "fraction", "frames", "duration_s",
+              "reference", "weighting",
+              "channels": [{"channel", "overall_db", "samples_at_full_scale",
+                            "bands": [{"midband_hz", "exact_midband_hz",
+                                       "level_db"}]}],
+              "intervals": [{"start_s", "end_s", "channels": [as above]}],
+              "filters": [{"midband_hz", "order", "rate_hz"}], "plot",
+              "warnings", "error"}]}
+  midband_hz is the nominal mid-band frequency, level_db null for a band
+  with no energy at all; levels are in dB re "reference".
+
 wavsieve verify --json
-  {"version", "pass", "note",
-   "checks": [every check of every file],
-   "files": [{"input", "output", "probe", "sample_rate_hz",
-              "channels_checked", "zero_phase", "segment", "window",
-              "segments", "resolution_hz", "confidence_level", "passed",
-              "failed", "unmeasurable", "pass",
-              "checks": [{"channel", "stage", "kind", "frequency_hz",
-                          "designed_db", "measured_db", "ci_low_db",
-                          "ci_high_db", "limit_db", "margin_db",
-                          "coherence", "verdict", ...}]}]}
+  {"version", "pass", "verdict": "pass" | "fail" | "inconclusive", "note",
+   "checks": [{"channel", "stage", "kind", "frequency_hz", "designed_db",
+               "design_range_db": [lo, hi], "measured_db",
+               "interval_db": [lo, hi], "limit_db", "margin_db",
+               "coherence", "random_error",
+               "verdict": "pass" | "fail" | "unmeasurable", "reason",
+               "lower_limit_db", "upper_limit_db", "label", "segment",
+               "averages", "resolution_hz"}, ... every check of every file],
+   "files": [{"input", "output", "method", "sample_rate_hz", "zero_phase",
+              "channels_checked", "frames", "skipped_frames_each_end",
+              "window", "confidence_level", "passed", "failed",
+              "unmeasurable", "pass", "verdict", "error",
+              "checks": [the file's checks]}]}
+  "pass" is true exactly when "verdict" is "pass": every passband-edge,
+  stopband-edge, cutoff, notch and mask check measured and passed. "kind" is
+  passband-edge, stopband-edge, cutoff, notch, notch-edge, passband,
+  stopband or mask (a row of a standard's tolerance table, named by
+  "label"). A value that does not apply is null; an interval open below
+  is [null, hi]. apply --verify puts each file's document (as in "files")
+  under "verify" in the run record.
 `
 
 const exitHelp = `Exit codes

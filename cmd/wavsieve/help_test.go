@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"os"
+	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
@@ -113,5 +114,29 @@ func TestVersion(t *testing.T) {
 				t.Errorf("version %q, want %q", doc.Version, buildinfo.Version())
 			}
 		})
+	}
+}
+
+// TestJSONGoesThroughWriteJSON: every JSON document a command prints on
+// stdout goes through writeJSON, which adds the version; a command that
+// encodes to stdout by itself would print a document without it.
+func TestJSONGoesThroughWriteJSON(t *testing.T) {
+	files, err := filepath.Glob("*.go")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range files {
+		if strings.HasSuffix(f, "_test.go") {
+			continue
+		}
+		b, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, bad := range []string{"json.NewEncoder(stdout)", "json.NewEncoder(os.Stdout)"} {
+			if strings.Contains(string(b), bad) {
+				t.Errorf("%s prints JSON with %s; use writeJSON so the document carries its version", f, bad)
+			}
+		}
 	}
 }

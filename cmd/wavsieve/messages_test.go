@@ -49,6 +49,8 @@ func TestMessages(t *testing.T) {
 		{"spec with a byte-order mark", []string{"design", "--spec", bom, "--rate", "48000"}, exitOK, nil, nil},
 		{"cutoff above nyquist from a flag", []string{"design", "--family", "butterworth", "--response", "lowpass", "--order", "2", "--cutoff", "30000", "--rate", "48000"}, exitUsage,
 			[]string{"--cutoff 30000 Hz is at or above the Nyquist frequency 24000 Hz"}, []string{"design: design:", "cutoff_hz"}},
+		{"a flag's edge above one file's nyquist", []string{"apply", "--family", "elliptic", "--response", "lowpass", "--passband", "7000", "--stopband", "8000", "--ripple", "0.1", "--attenuation", "80", "--output", filepath.Join(dir, "o3"), "../../samples/pumphouse-vibration-12800.wav"}, exitFail,
+			[]string{"at this file's 12800 Hz rate: --passband 7000 Hz is at or above the Nyquist frequency 6400 Hz"}, []string{"passband_hz"}},
 		{"cutoff without order", []string{"design", "--family", "butterworth", "--response", "lowpass", "--cutoff", "500", "--rate", "48000"}, exitUsage,
 			[]string{"--cutoff needs --order", "--passband, --stopband"}, []string{"invalid order 0"}},
 		{"channel past the last", with(append([]string{"apply"}, lp...), "--channels", "3", "--output", filepath.Join(dir, "o2"), north), exitFail,

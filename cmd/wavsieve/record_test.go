@@ -144,3 +144,18 @@ func TestApplyPlanningErrorLeavesNoFolder(t *testing.T) {
 		t.Error("the output folder was left behind")
 	}
 }
+
+func TestApplyOutputInsideInput(t *testing.T) {
+	// -r with the output folder inside the input folder: the outputs are
+	// left out of the input walk, so a second run skips, not refuses.
+	dir := t.TempDir()
+	writeTestWAV(t, filepath.Join(dir, "a.wav"), 16000, 1, 0.2)
+	writeTestWAV(t, filepath.Join(dir, "sub", "b.wav"), 16000, 1, 0.2)
+	out := filepath.Join(dir, "clean")
+	for run, want := range []string{"2 done, 0 skipped", "0 done, 2 skipped"} {
+		code, _, stderr := runCmd(t, applyArgs("--no-progress", "-r", "--output", out, dir)...)
+		if code != exitOK || !strings.Contains(stderr, want) {
+			t.Fatalf("run %d: exit %d: %s", run+1, code, stderr)
+		}
+	}
+}

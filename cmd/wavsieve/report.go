@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"github.com/spf13/pflag"
 	htmlreport "github.com/wavsieve/wavsieve/analyze/report"
@@ -81,7 +82,9 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			continue
 		}
 		r.Title = "wavsieve report"
-		r.Subtitle += "; " + one.Subtitle
+		if one.Subtitle != "" {
+			r.Subtitle = strings.TrimPrefix(r.Subtitle+"; "+one.Subtitle, "; ")
+		}
 		r.Merge(one)
 	}
 	var b bytes.Buffer

@@ -3,6 +3,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"strconv"
 	"strings"
@@ -82,7 +83,7 @@ func (s *specFlags) baseSpec(fs *pflag.FlagSet) (design.Spec, error) {
 		if len(set) > 0 {
 			return design.Spec{}, usagef("give the filter either with --spec or with flags, not both (also set: %s)", strings.Join(set, ", "))
 		}
-		b, err := os.ReadFile(s.file)
+		b, err := readSpecFile(s.file)
 		if err != nil {
 			return design.Spec{}, wavio.PathError(s.file, err)
 		}
@@ -165,6 +166,37 @@ func parseEdges(flag, v string) (design.Edges, error) {
 		e[i] = f
 	}
 	return e, nil
+}
+
+// readSpecFile reads a spec file of at most design.MaxSpecBytes: a
+// larger one (or an endless one such as /dev/zero) is refused after
+// that many bytes.
+func readSpecFile(name string) ([]byte, error) {
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	b, err := io.ReadAll(io.LimitReader(f, design.MaxSpecBytes+1))
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	if len(b) > design.MaxSpecBytes {
+		return nil, fmt.Errorf("%s: larger than %d bytes, the limit for a spec file; is it the right file?", name, design.MaxSpecBytes)
+	}
+	return b, nil
+}
+
+// check checks what can be checked of spec without a sample rate; a
+// failure is a usage error naming the spec file, if any.
+func (s *specFlags) check(spec design.Spec) error {
+	if err := design.CheckSpec(spec); err != nil {
+		if s.file != "" {
+			return usagef("%s: %v", s.file, err)
+		}
+		return usagef("%v", err)
+	}
+	return nil
 }
 
 // specKeyFlags maps the spec keys that have a flag to it.

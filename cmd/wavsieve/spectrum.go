@@ -27,7 +27,7 @@ The spectrum is a Welch estimate: the file is cut into segments of
 transformed, and the periodograms are averaged (by the mean, or with
 --median by the per-bin median, which resists bursts). Windows are
 periodic: hann (default), hamming, blackman-harris, flat-top, rectangular
-or kaiser:BETA. --scaling density gives FS^2/Hz (FS: digital full scale),
+or kaiser:BETA. --scaling density gives FS²/Hz (FS: digital full scale),
 spectrum gives FS^2, where a sinusoid's bin reads its power.
 
 Each channel gets its own spectrum, or with --average-channels one
@@ -84,7 +84,7 @@ func runSpectrum(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	segment := fs.Int("segment", 8192, "segment length in `samples`")
 	overlap := fs.Int("overlap", 0, "`samples` shared by neighbouring segments, 0 or more (default: half the segment)")
 	window := fs.String("window", "hann", "window `name`: hann, hamming, blackman-harris, flat-top, rectangular or kaiser:BETA")
-	scaling := fs.String("scaling", "density", "`density` (FS^2/Hz) or spectrum (FS^2)")
+	scaling := fs.String("scaling", "density", "`density` (FS²/Hz) or spectrum (FS²)")
 	detrend := fs.String("detrend", "mean", "remove `none`, mean or linear trend from each segment")
 	avgCh := fs.Bool("average-channels", false, "one spectrum, the mean over the channels")
 	median := fs.Bool("median", false, "average the segments by the per-bin median instead of the mean")
@@ -316,7 +316,7 @@ func writeSpectrumPlot(name string, docs []*spectrumDoc) error {
 	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(name), "."))
 	sp := plots.SpectrumPlot{FrequenciesHz: docs[0].Frequencies}
 	if docs[0].Scaling == "density" {
-		sp.YLabel = "density (dBFS^2/Hz)"
+		sp.YLabel = "density (dBFS²/Hz)"
 	} else {
 		sp.YLabel = "power (dBFS)"
 	}

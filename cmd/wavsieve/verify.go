@@ -375,18 +375,34 @@ func printVerify(w io.Writer, r *verify.Result) {
 	fmt.Fprintf(w, "  %d Hz, %s; channels %s\n", r.SampleRate, mode, joinInts64(r.Channels))
 	fmt.Fprintf(w, "  H1 read at each check's exact frequency, %s segments chosen per check, %d frames skipped at each end, %.0f%% intervals\n\n",
 		r.Window, r.SkippedFrames, 100*r.ConfidenceLevel)
-	fmt.Fprintf(w, "  %-2s %-2s %-13s %11s %8s %15s %8s %15s %9s %7s  %s\n", "ch", "st", "kind", "Hz", "designed", "design range", "measured", "interval", "limit", "margin", "verdict")
+	// A limit from below shows as ">=", from above as "<="; a mask row
+	// bounded on both sides shows both, lower..upper.
+	limit := func(c verify.Check) string {
+		switch {
+		case c.LowerLimitDB != nil && c.UpperLimitDB != nil:
+			return fmt.Sprintf("%.2f..%.2f", *c.LowerLimitDB, *c.UpperLimitDB)
+		case c.LowerLimitDB != nil:
+			return fmt.Sprintf(">= %.2f", *c.LowerLimitDB)
+		case c.UpperLimitDB != nil:
+			return fmt.Sprintf("<= %.2f", *c.UpperLimitDB)
+		}
+		return "-"
+	}
+	lw := 10
+	for _, c := range r.Checks {
+		lw = max(lw, len(limit(c)))
+	}
+	fmt.Fprintf(w, "  %-2s %-2s %-13s %11s %8s %15s %8s %15s %*s %7s  %s\n", "ch", "st", "kind", "Hz", "designed", "design range", "measured", "interval", lw, "limit", "margin", "verdict")
 	for _, c := range r.Checks {
 		kind := c.Kind
-		if c.Label != "" {
+		if c.Label != "" && len(kind)+1+len(c.Label) <= 13 {
 			kind += " " + c.Label
 		}
-		lim := "-"
-		if c.LimitDB != nil {
-			lim = fmt.Sprintf("%.2f", *c.LimitDB)
+		fmt.Fprintf(w, "  %-2d %-2d %-13s %11s %8s %15s %8s %15s %*s %7s  %s\n", c.Channel, c.Stage, kind, fmtHz(c.FrequencyHz),
+			fmtDB(c.DesignedDB, "%.2f"), fmtPair(c.DesignRangeDB), fmtDB(c.MeasuredDB, "%.2f"), fmtPair(c.IntervalDB), lw, limit(c), fmtDB(c.MarginDB, "%+.2f"), c.Verdict)
+		if c.Label != "" && len(c.Kind)+1+len(c.Label) > 13 {
+			fmt.Fprintf(w, "        %s\n", c.Label)
 		}
-		fmt.Fprintf(w, "  %-2d %-2d %-13s %11s %8s %15s %8s %15s %9s %7s  %s\n", c.Channel, c.Stage, kind, fmtHz(c.FrequencyHz),
-			fmtDB(c.DesignedDB, "%.2f"), fmtPair(c.DesignRangeDB), fmtDB(c.MeasuredDB, "%.2f"), fmtPair(c.IntervalDB), lim, fmtDB(c.MarginDB, "%+.2f"), c.Verdict)
 		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1)) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}

@@ -155,6 +155,9 @@ func TestVerifyZeroPhaseDoubling(t *testing.T) {
 	applyTo(t, in, out, append(bw, "--zero-phase")...)
 	// Checked against the squared design (-6.02 dB at the cutoff) the run
 	// passes; as if causal (-3.01 dB) its cutoff reads 3 dB low and fails.
+	// Both figures are definitions: the Butterworth |H|^2 = 1/(1 + (f/fc)^2N)
+	// is 1/2 at fc (10 log10 0.5 = -3.0103 dB), and forward-backward squares
+	// it (-6.0206 dB).
 	if code, stdout, stderr := runCmd(t, append([]string{"verify", "--input", in, "--output", out, "--zero-phase"}, bw...)...); code == exitFail {
 		t.Fatalf("zero-phase run as zero-phase: exit %d: %s\n%s", code, stderr, stdout)
 	}

@@ -49,6 +49,7 @@ var columns = []column{
 	optional(integer("edge_transient_frames", func(f *File) *int { return &f.EdgeTransient })),
 	optional(list("track_range_hz", func(f *File) *[]float64 { return &f.TrackRangeHz })),
 	optional(asJSON("warnings", func(f *File) *[]string { return &f.Warnings })),
+	optional(list("nonfinite_samples", func(f *File) *[]int64 { return &f.NonFinite })),
 	float("seconds", func(f *File) *float64 { return &f.Seconds }),
 	optional(raw("verify", func(f *File) *json.RawMessage { return &f.Verify })),
 }

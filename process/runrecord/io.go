@@ -13,6 +13,8 @@ import (
 	"path/filepath"
 	"strings"
 	"time"
+
+	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
 func indent(w *strings.Builder, b []byte) error {
@@ -136,7 +138,9 @@ func writeAtomic(name string, data []byte) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("runrecord: %w", err)
 	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(name)+".tmp-*")
+	// A locked temporary file that a later run recognises and removes
+	// (wavio.RemoveStale) if this one is killed before the rename.
+	tmp, err := wavio.CreateTemp(dir, filepath.Base(name))
 	if err != nil {
 		return fmt.Errorf("runrecord: %w", err)
 	}

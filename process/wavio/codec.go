@@ -21,7 +21,7 @@ const (
 	kS16
 	kS24
 	kS32
-	kSWide // 40 to 64-bit containers, read only
+	kSWide // 40 to 64-bit containers
 	kF32
 	kF64
 )
@@ -146,6 +146,9 @@ type quantizer struct {
 	scale    float64 // 2^(valid-1)
 	lo, hi   float64 // integer range of the valid bits
 	shift    uint    // bits - valid: left-justification in the container
+	width    int     // container bytes
+	minN     int64   // integer range of the valid bits, for wide containers
+	maxN     int64
 	dither   bool
 	rng      splitMix
 	channels int
@@ -269,8 +272,41 @@ func encode(k sampleKind, q *quantizer, src []float64, dst []byte) int {
 			}
 			binary.LittleEndian.PutUint32(dst[4*i:], uint32(math.Float64bits(v+roundMagic))<<shift)
 		}
+	case kSWide:
+		// 40- to 64-bit containers: v may pass 2^51, where the
+		// roundMagic trick stops working, so round explicitly; float64
+		// holds 53 bits, so the lowest bits of a container wider than
+		// that are always zero.
+		width := q.width
+		for i, x := range src {
+			v := x*scale + noise[i]
+			if !(v >= lo && v < hi) {
+				var ok bool
+				if v, ok = q.clip(x, v, i); !ok {
+					return i
+				}
+			}
+			n := min(max(wideInt(math.RoundToEven(v)), q.minN), q.maxN)
+			u := uint64(n) << shift
+			d := dst[width*i : width*i+width : width*i+width]
+			for j := range d {
+				d[j] = byte(u >> (8 * j))
+			}
+		}
 	}
 	return -1
+}
+
+// wideInt converts a whole float64 to int64, saturating: 2^63 itself,
+// the float64 nearest to the top of a 64-bit range, becomes MaxInt64.
+func wideInt(v float64) int64 {
+	if v >= 0x1p63 {
+		return math.MaxInt64
+	}
+	if v <= -0x1p63 {
+		return math.MinInt64
+	}
+	return int64(v)
 }
 
 func encodeFloat(k sampleKind, src []float64, dst []byte) int {

@@ -3,6 +3,7 @@ package wavio
 import (
 	"errors"
 	"fmt"
+	"io"
 )
 
 // Encoding is how a sample is stored: integer PCM or IEEE float.
@@ -122,6 +123,12 @@ const (
 	// WarnHeader: a header field is inconsistent but not needed to read the
 	// samples (for example valid bits of 0, or a wrong byte rate).
 	WarnHeader
+	// WarnSecondData: a second data chunk follows the first; it is not
+	// read.
+	WarnSecondData
+	// WarnOmitted: more warnings than the Reader lists; this one counts
+	// the rest.
+	WarnOmitted
 )
 
 // Warning is a defect the Reader tolerated.
@@ -131,13 +138,35 @@ type Warning struct {
 	Msg    string
 }
 
-func (w Warning) String() string { return fmt.Sprintf("offset %d: %s", w.Offset, w.Msg) }
+func (w Warning) String() string {
+	if w.Offset < 0 {
+		return w.Msg
+	}
+	return fmt.Sprintf("offset %d: %s", w.Offset, w.Msg)
+}
 
 // Chunk is a RIFF chunk other than fmt, data, fact and ds64, kept byte-exact.
+//
+// Its body is Data or, when Source is set, the Length bytes at Offset
+// in Source: the Reader keeps a chunk too large to hold in memory that
+// way, and the Writer copies it from there when it writes the chunk, so
+// Source must stay open until the Writer is closed.
 type Chunk struct {
 	ID        string // four characters, for example "bext", "LIST", "iXML"
-	Data      []byte // the body, without the pad byte
+	Data      []byte // the body, without the pad byte (nil with Source)
 	AfterData bool   // the chunk came after the data chunk
+
+	Source io.ReaderAt // where the body is, instead of Data
+	Offset int64       // its offset in Source
+	Length int64       // its length
+}
+
+// Size returns the length of the chunk's body.
+func (c Chunk) Size() int64 {
+	if c.Source != nil {
+		return c.Length
+	}
+	return int64(len(c.Data))
 }
 
 // Format tags and the sub-format GUID tail of WAVE_FORMAT_EXTENSIBLE
@@ -172,6 +201,15 @@ func unsupportedTag(tag uint16) error {
 	return UnsupportedError(fmt.Sprintf("encoding: format tag 0x%04x", tag))
 }
 
+// Writable reports whether the Writer can produce f: nil, or an error
+// saying what in f it cannot write.
+func (f Format) Writable() error {
+	if f.ValidBits == 0 {
+		f.ValidBits = f.Bits
+	}
+	return checkWritable(f)
+}
+
 // checkWritable reports whether the Writer can produce f.
 func checkWritable(f Format) error {
 	if f.SampleRate < 1 || int64(f.SampleRate) > 0xFFFFFFFF {
@@ -182,10 +220,8 @@ func checkWritable(f Format) error {
 	}
 	switch f.Encoding {
 	case PCM:
-		switch f.Bits {
-		case 8, 16, 24, 32:
-		default:
-			return UnsupportedError(fmt.Sprintf("output: %d-bit pcm (the writer takes 8, 16, 24 or 32)", f.Bits))
+		if f.Bits < 8 || f.Bits > 64 || f.Bits%8 != 0 {
+			return UnsupportedError(fmt.Sprintf("output: %d-bit pcm (the writer takes containers of 8 to 64 bits in whole bytes)", f.Bits))
 		}
 		if f.ValidBits < 0 || f.ValidBits > f.Bits {
 			return fmt.Errorf("wavio: invalid valid bits %d for a %d-bit container", f.ValidBits, f.Bits)

@@ -112,3 +112,91 @@ func roundTrip(t *testing.T, data []byte, r *Reader) {
 		t.Fatalf("the writer's output gives warnings: %v", r2.Warnings())
 	}
 }
+
+// FuzzWriterChunks splits arbitrary bytes into metadata chunks, some
+// held in memory and some as references into a source (as the Reader
+// keeps large ones), writes them with a few frames and reads the result
+// back: the Writer must not panic, must refuse only invalid chunks, and
+// every chunk must come back byte for byte, in order, before or after
+// the data as asked. A source shorter than a reference claims must give
+// an error, never a short chunk.
+func FuzzWriterChunks(f *testing.F) {
+	f.Add([]byte("LIST\x04INFObext\x10abcdefghijklmnop"), uint8(1), false)
+	f.Add([]byte("iXML\x03<a>note\x00"), uint8(2), true)
+	f.Add(bytes.Repeat([]byte("junk\x07odd-siz"), 5), uint8(5), false)
+	f.Fuzz(func(t *testing.T, data []byte, refMask uint8, shortSource bool) {
+		src := bytes.NewReader(data)
+		var cs []Chunk
+		pos := int64(0) // offset of data in the source
+		for i := 0; len(data) >= 5 && i < 16; i++ {
+			id := string(data[:4])
+			n := min(int(data[4]), len(data)-5)
+			body := data[5 : 5+n]
+			c := Chunk{ID: id, AfterData: data[4]&1 == 1}
+			if refMask&(1<<(i%8)) != 0 {
+				c.Source, c.Offset, c.Length = src, pos+5, int64(n)
+				if shortSource {
+					c.Length += 3 // past the end of what is there, for the last one
+				}
+			} else {
+				c.Data = body
+			}
+			cs = append(cs, c)
+			data = data[5+n:]
+			pos += int64(5 + n)
+		}
+		var m memWS
+		w, err := NewWriter(&m, WriterOptions{Format: Format{SampleRate: 8000, Channels: 1, Bits: 16, Encoding: PCM}, NoDither: true, Chunks: cs})
+		if err != nil {
+			for _, c := range cs {
+				if checkChunk(c) != nil {
+					return // refused for a reason
+				}
+			}
+			t.Fatalf("valid chunks refused: %v", err)
+		}
+		short := false // a reference past the end of its source
+		for _, c := range cs {
+			short = short || c.Source != nil && c.Offset+c.Length > src.Size()
+		}
+		err = w.WriteFrames([]float64{0, 0.5, -0.5})
+		if err == nil {
+			err = w.Close()
+		}
+		switch {
+		case short && err == nil:
+			t.Fatal("a chunk past the end of its source was written without an error")
+		case short:
+			return // the error is right
+		case err != nil:
+			t.Fatal(err)
+		}
+		r, err := NewReader(bytes.NewReader(m.b), &ReaderOptions{MaxChunkSize: 1 << 20})
+		if err != nil {
+			t.Fatalf("reading the output: %v", err)
+		}
+		var before, after []Chunk
+		for _, c := range cs {
+			if c.AfterData {
+				after = append(after, c)
+			} else {
+				before = append(before, c)
+			}
+		}
+		want := append(before, after...)
+		got := r.Chunks()
+		if len(got) != len(want) {
+			t.Fatalf("%d chunks read back, wrote %d", len(got), len(want))
+		}
+		for i := range want {
+			wb := want[i].Data
+			if want[i].Source != nil {
+				wb = make([]byte, want[i].Length)
+				want[i].Source.ReadAt(wb, want[i].Offset)
+			}
+			if got[i].ID != want[i].ID || got[i].AfterData != want[i].AfterData || !bytes.Equal(got[i].Data, wb) {
+				t.Fatalf("chunk %d: %q after=%v %q, wrote %q after=%v %q", i, got[i].ID, got[i].AfterData, got[i].Data, want[i].ID, want[i].AfterData, wb)
+			}
+		}
+	})
+}

@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
-	"os"
 	"strings"
 )
 
@@ -17,15 +16,30 @@ type ReaderOptions struct {
 	// caller, who can check NonFinite afterwards. By default the first one
 	// stops reading with a *NonFiniteError.
 	AllowNonFinite bool
+	// ZeroNonFinite replaces each NaN or infinite sample by 0 and counts
+	// them per channel (NonFiniteByChannel); it implies AllowNonFinite.
+	ZeroNonFinite bool
 	// MaxChunkSize caps the body of one kept metadata chunk; larger ones
 	// are skipped with a WarnChunkDropped warning. 0 means 64 MiB.
 	MaxChunkSize int64
 }
 
+// Metadata budget. A Reader holds at most maxChunks metadata chunks, and
+// at most metaMemory bytes of their bodies in memory, no one body larger
+// than chunkInMemory: a larger chunk of a file that can seek is kept as a
+// reference (Chunk.Source) and copied from the file when written; one
+// that cannot be is dropped with a WarnChunkDropped warning. The
+// warnings list holds at most maxWarnings entries plus one that counts
+// the rest. So a header declaring huge or countless chunks costs at most
+// about 1.5 MiB, whatever it claims.
 const (
 	defaultMaxChunk = 64 << 20
 	readBufSize     = 64 << 10
 	maxFmtSize      = 1 << 16 // no fmt chunk needs more; larger is invalid
+	maxChunks       = 1024
+	metaMemory      = 1 << 20
+	chunkInMemory   = 256 << 10
+	maxWarnings     = 64
 )
 
 // Reader decodes the samples of a WAV file as interleaved float64 frames.
@@ -62,6 +76,12 @@ type Reader struct {
 	warnings  []Warning
 	err       error // sticky
 
+	at          io.ReaderAt // src, when chunks can be referenced in it
+	metaHeld    int64       // bytes of chunk bodies held in memory
+	chunksOver  int64       // chunks not kept because there were too many
+	warnOmitted int64       // warnings beyond maxWarnings
+	nonFiniteCh []int64     // ZeroNonFinite: replaced samples per channel
+
 	opts        ReaderOptions
 	raw         []byte
 	nonFinite   int64
@@ -72,8 +92,13 @@ type Reader struct {
 
 // Open opens the named file and returns a Reader on it. The Reader's Close
 // closes the file.
+//
+// Only a regular file is read: a FIFO, a device, a socket or a folder is
+// refused with a *NotRegularError, checked before it is opened and again
+// on the open file, which is opened without blocking so that a FIFO with
+// no writer cannot stall the caller.
 func Open(name string, opts *ReaderOptions) (*Reader, error) {
-	f, err := os.Open(name)
+	f, err := OpenRegular(name)
 	if errors.Is(err, fs.ErrNotExist) {
 		return nil, &NotFoundError{Path: name}
 	}
@@ -129,6 +154,12 @@ func NewReader(r io.Reader, opts *ReaderOptions) (*Reader, error) {
 			}
 		}
 	}
+	if ra, ok := r.(io.ReaderAt); ok && rd.seeker != nil {
+		rd.at = ra
+	}
+	if rd.opts.ZeroNonFinite {
+		rd.opts.AllowNonFinite = true
+	}
 	rd.br = bufio.NewReaderSize(r, bufSize)
 	if err := rd.readHeader(); err != nil {
 		return nil, err
@@ -141,11 +172,13 @@ func NewReader(r io.Reader, opts *ReaderOptions) (*Reader, error) {
 		rawSize = int(max(rd.dataLen/int64(rd.ba), 1)) * rd.ba
 	}
 	rd.raw = make([]byte, rawSize)
+	rd.nonFiniteCh = make([]int64, rd.format.Channels)
 	if rd.seeker != nil && rd.dataLen >= 0 {
 		if err := rd.scanTrailer(); err != nil {
 			return nil, err
 		}
 	}
+	rd.noteChunksOver()
 	return rd, nil
 }
 
@@ -163,8 +196,19 @@ func (r *Reader) Frames() int64 { return r.frames }
 // the chunk bodies belong to the Reader; do not modify them.
 func (r *Reader) Chunks() []Chunk { return r.chunks }
 
-// Warnings returns the tolerated defects found so far.
-func (r *Reader) Warnings() []Warning { return r.warnings }
+// Warnings returns the tolerated defects found so far: at most 64, and
+// then one more that says how many were left out.
+func (r *Reader) Warnings() []Warning {
+	if r.warnOmitted == 0 {
+		return r.warnings
+	}
+	return append(r.warnings[:len(r.warnings):len(r.warnings)], Warning{Kind: WarnOmitted, Offset: -1, Msg: fmt.Sprintf("%d more warnings not listed", r.warnOmitted)})
+}
+
+// NonFiniteByChannel returns, per channel, how many NaN or infinite
+// samples ReaderOptions.ZeroNonFinite replaced by 0 so far. The slice is
+// a copy.
+func (r *Reader) NonFiniteByChannel() []int64 { return append([]int64(nil), r.nonFiniteCh...) }
 
 // NonFinite returns how many NaN or infinite samples were let through with
 // ReaderOptions.AllowNonFinite, and the position of the first one.
@@ -184,6 +228,10 @@ func (r *Reader) Close() error {
 }
 
 func (r *Reader) warn(k WarningKind, off int64, format string, args ...any) {
+	if len(r.warnings) >= maxWarnings {
+		r.warnOmitted++
+		return
+	}
 	r.warnings = append(r.warnings, Warning{Kind: k, Offset: off, Msg: fmt.Sprintf(format, args...)})
 }
 
@@ -441,20 +489,51 @@ func (r *Reader) readHeader() error {
 	}
 }
 
-// keepChunk reads a metadata chunk body into r.chunks, or skips it when it
-// is larger than the limit.
+// keepChunk reads a metadata chunk body into r.chunks, keeps a reference
+// to it in the file, or skips it when it is larger than the limit or
+// beyond the metadata budget.
 func (r *Reader) keepChunk(id string, size, start int64, after bool) error {
 	if size > r.opts.MaxChunkSize {
 		r.warn(WarnChunkDropped, start, "%q chunk of %d bytes exceeds the %d-byte limit and is not kept", id, size, r.opts.MaxChunkSize)
 		_, err := r.discard(size)
 		return noEOF(err)
 	}
+	if len(r.chunks) >= maxChunks {
+		r.chunksOver++
+		_, err := r.discard(size)
+		return noEOF(err)
+	}
+	if size > chunkInMemory || r.metaHeld+size > metaMemory {
+		if r.at == nil {
+			r.warn(WarnChunkDropped, start, "%q chunk of %d bytes is beyond the %d-byte metadata held in memory for a file read as a stream, and is not kept", id, size, metaMemory)
+			_, err := r.discard(size)
+			return noEOF(err)
+		}
+		if r.fileSize >= 0 && size > r.fileSize-r.off {
+			return io.ErrUnexpectedEOF
+		}
+		at := r.off
+		if _, err := r.discard(size); err != nil {
+			return noEOF(err)
+		}
+		r.chunks = append(r.chunks, Chunk{ID: id, AfterData: after, Source: r.at, Offset: at, Length: size})
+		return nil
+	}
 	body, err := r.readBody(size)
 	if err != nil {
 		return err
 	}
+	r.metaHeld += int64(len(body))
 	r.chunks = append(r.chunks, Chunk{ID: id, Data: body, AfterData: after})
 	return nil
+}
+
+// noteChunksOver warns once about the chunks not kept for their number.
+func (r *Reader) noteChunksOver() {
+	if r.chunksOver > 0 {
+		r.warn(WarnChunkDropped, -1, "%d metadata chunks beyond the first %d are not kept", r.chunksOver, maxChunks)
+		r.chunksOver = 0
+	}
 }
 
 func (r *Reader) parseFmt(b []byte, start int64) error {
@@ -606,6 +685,7 @@ func (r *Reader) scanTrailer() error {
 // file. Defects here cost no audio and are warnings.
 func (r *Reader) parseTrailer() {
 	r.trailer = true
+	defer r.noteChunksOver()
 	if r.dataOdd {
 		if err := r.skipPad("data"); err != nil {
 			return
@@ -635,6 +715,9 @@ func (r *Reader) parseTrailer() {
 			return
 		}
 		size := r.chunkSize(id, r.order.Uint32(ch[4:8]))
+		if id == "data" {
+			r.warn(WarnSecondData, start, "a second data chunk of %d bytes follows the first and is not read: only the first one's %d frames are audio here", size, r.frames)
+		}
 		if id == "fmt " || id == "data" || id == "fact" || id == "ds64" {
 			if _, err := r.discard(size); err != nil {
 				return
@@ -756,6 +839,10 @@ func (r *Reader) checkNonFinite(out []float64, bad int) *NonFiniteError {
 				r.firstBad = NonFiniteError{Frame: r.pos + int64(i/ch), Channel: i % ch, Value: v}
 			}
 			r.nonFinite++
+			if r.opts.ZeroNonFinite {
+				out[i] = 0
+				r.nonFiniteCh[i%ch]++
+			}
 		}
 	}
 	return nil

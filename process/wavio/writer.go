@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"time"
@@ -80,7 +81,10 @@ func Create(name string, opts WriterOptions) (*Writer, error) {
 	if dir == "" {
 		dir = "."
 	}
-	f, err := os.CreateTemp(dir, "."+base+".tmp-*")
+	if err := CheckOutputPath(name); err != nil {
+		return nil, err
+	}
+	f, err := CreateTemp(dir, base)
 	if err != nil {
 		return nil, fmt.Errorf("wavio: %w", err)
 	}
@@ -115,7 +119,9 @@ func NewWriter(ws io.WriteSeeker, opts WriterOptions) (*Writer, error) {
 		if err := checkChunk(c); err != nil {
 			return nil, err
 		}
-		c.Data = append([]byte(nil), c.Data...)
+		if c.Source == nil {
+			c.Data = append([]byte(nil), c.Data...)
+		}
 		if c.AfterData {
 			w.after = append(w.after, c)
 		} else {
@@ -124,9 +130,12 @@ func NewWriter(ws io.WriteSeeker, opts WriterOptions) (*Writer, error) {
 	}
 	w.q = quantizer{channels: f.Channels, clipped: make([]int64, f.Channels)}
 	if f.Encoding == PCM {
-		w.q.scale = float64(int64(1) << (f.ValidBits - 1))
+		w.q.scale = math.Ldexp(1, f.ValidBits-1) // 2^63 overflows an int64 shift
 		w.q.lo, w.q.hi = -w.q.scale, w.q.scale-1
 		w.q.shift = uint(f.Bits - f.ValidBits)
+		w.q.width = f.Bits / 8
+		w.q.maxN = int64(uint64(1)<<(f.ValidBits-1) - 1)
+		w.q.minN = -w.q.maxN - 1
 		w.q.dither = !opts.NoDither
 	}
 	w.seed = opts.DitherSeed
@@ -143,15 +152,18 @@ func NewWriter(ws io.WriteSeeker, opts WriterOptions) (*Writer, error) {
 }
 
 func checkChunk(c Chunk) error {
-	if len(c.ID) != 4 {
-		return fmt.Errorf("wavio: invalid chunk id %q", c.ID)
+	if len(c.ID) != 4 || !isFourCC([]byte(c.ID)) {
+		return fmt.Errorf("wavio: invalid chunk id %q: four printable ASCII characters", c.ID)
 	}
 	switch c.ID {
 	case "fmt ", "data", "fact", "ds64", "RIFF", "RF64", "BW64", "RIFX":
 		return fmt.Errorf("wavio: invalid chunk id %q: written by the writer itself", c.ID)
 	}
-	if int64(len(c.Data)) > 0xFFFFFFFE {
-		return fmt.Errorf("wavio: invalid chunk %q: %d bytes exceed the 32-bit size", c.ID, len(c.Data))
+	if c.Source != nil && (c.Offset < 0 || c.Length < 0 || c.Data != nil) {
+		return fmt.Errorf("wavio: invalid chunk %q: source at offset %d, length %d, with data of its own", c.ID, c.Offset, c.Length)
+	}
+	if c.Size() > 0xFFFFFFFE {
+		return fmt.Errorf("wavio: invalid chunk %q: %d bytes exceed the 32-bit size", c.ID, c.Size())
 	}
 	return nil
 }
@@ -183,7 +195,9 @@ func (w *Writer) AddChunk(c Chunk) error {
 	if w.closed {
 		return errClosed
 	}
-	c.Data = append([]byte(nil), c.Data...)
+	if c.Source == nil {
+		c.Data = append([]byte(nil), c.Data...)
+	}
 	if c.AfterData {
 		w.after = append(w.after, c)
 		return nil
@@ -205,7 +219,7 @@ func (w *Writer) AppendCodingHistory(line string) error {
 	}
 	for _, list := range [][]Chunk{w.before, w.after} {
 		for i := range list {
-			if list[i].ID != "bext" {
+			if list[i].ID != "bext" || list[i].Source != nil {
 				continue
 			}
 			if !list[i].AfterData && w.started {
@@ -235,14 +249,39 @@ func (w *Writer) put(p []byte) error {
 
 func (w *Writer) putChunk(c Chunk) error {
 	var h [8]byte
+	n := c.Size()
 	copy(h[:4], c.ID)
-	binary.LittleEndian.PutUint32(h[4:], uint32(len(c.Data)))
+	binary.LittleEndian.PutUint32(h[4:], uint32(n))
 	w.put(h[:])
-	w.put(c.Data)
-	if len(c.Data)&1 == 1 {
+	if c.Source != nil {
+		w.copyChunk(c)
+	} else {
+		w.put(c.Data)
+	}
+	if n&1 == 1 {
 		w.put([]byte{0})
 	}
 	return w.err
+}
+
+// copyChunk copies the body of a chunk held as a reference from its
+// Source, through a buffer of at most 64 KiB. A source that ends before
+// Length bytes (a file shortened since it was read) is an error.
+func (w *Writer) copyChunk(c Chunk) {
+	buf := make([]byte, min(c.Length, 64<<10))
+	for at := int64(0); at < c.Length && w.err == nil; {
+		p := buf[:min(int64(len(buf)), c.Length-at)]
+		k, err := c.Source.ReadAt(p, c.Offset+at)
+		if k < len(p) {
+			if err == nil || err == io.EOF {
+				err = io.ErrUnexpectedEOF
+			}
+			w.err = fmt.Errorf("wavio: copying the %q chunk from the input: %w", c.ID, err)
+			return
+		}
+		w.put(p)
+		at += int64(k)
+	}
 }
 
 // extensible reports whether the format needs WAVE_FORMAT_EXTENSIBLE:

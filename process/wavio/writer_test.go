@@ -14,7 +14,14 @@ import (
 
 // TestScale checks the float<->int mapping documented in codec.go against
 // bytes worked out by hand from it (v / 2^(N-1); 8-bit offset 128; round
-// half to even, IEEE 754 section 4.3.1 default rounding).
+// half to even, IEEE 754 section 4.3.1 default rounding). The WAVE format
+// documents say 8-bit PCM is unsigned with silence at 128 and wider PCM is
+// signed two's complement, little-endian: IBM and Microsoft, "Multimedia
+// Programming Interface and Data Specifications 1.0", 1991, the data
+// chunk's description of the PCM format; and Microsoft, "Multiple Channel
+// Audio Data and WAVE Files" (WAVE_FORMAT_EXTENSIBLE), for the container
+// size. Both quoted from memory. The scale v / 2^(N-1) (full scale at
+// -2^(N-1)) is common practice, and the choice codec.go documents.
 func TestScale(t *testing.T) {
 	cases := []struct {
 		bits int
@@ -109,9 +116,12 @@ func TestWriterRefusesNonFinite(t *testing.T) {
 
 // TestDither checks TPDF dither statistically. With TPDF dither of 2 LSB
 // peak-to-peak the total error (dither plus rounding) has mean 0 and
-// variance 1/4 LSB^2 for any input (Lipshitz, Wannamaker and Vanderkooy
-// 1992, J. Audio Eng. Soc. 40(5): 1/12 from rounding plus 1/6 from the
-// dither), where plain rounding of a constant gives a fixed error.
+// variance 1/4 LSB^2 for any input (Lipshitz, Wannamaker and Vanderkooy,
+// "Quantization and Dither: A Theoretical Survey", J. Audio Eng. Soc.
+// 40(5), 1992, quoted from memory: 1/12 from rounding plus 1/6 from the
+// dither, the variance of the sum of two independent uniform variables of
+// 1 LSB width, 2 x 1/12), where plain rounding of a constant gives a fixed
+// error.
 func TestDither(t *testing.T) {
 	f := Format{SampleRate: 8000, Channels: 1, Bits: 16, Encoding: PCM}
 	const n = 200000
@@ -329,7 +339,7 @@ func TestCreateIsAtomic(t *testing.T) {
 	if _, err := os.Stat(name); !errors.Is(err, os.ErrNotExist) {
 		t.Fatal("the final name exists before Close")
 	}
-	if l := list(); len(l) != 1 || !strings.HasPrefix(l[0], ".out.wav.tmp-") {
+	if l := list(); len(l) != 1 || !strings.HasPrefix(l[0], ".out.wav.wavsieve-tmp-") {
 		t.Fatalf("folder during writing: %v", l)
 	}
 	if err := w.Close(); err != nil {

@@ -146,14 +146,23 @@ submit() { # folder, extra sbatch flags...
   id=${id%%;*}
   # Until no task of the array is pending or running (sbatch --wait
   # polls too seldom to time it).
-  local most=0 now
-  while squeue -h -j "$id" 2>/dev/null | grep -q .; do
-    now=$(squeue -h -j "$id" -t R 2>/dev/null | wc -l)
+  # Each poll notes the time and the tasks running, for the timeline.
+  local most=0 now q
+  : >"$dir/timeline"
+  while q=$(squeue -h -j "$id" -o '%K %t' 2>/dev/null) && [ -n "$q" ]; do
+    now=$(grep -c ' R$' <<<"$q" || true)
     [ "$now" -gt "$most" ] && most=$now
+    grep ' R$' <<<"$q" | sed "s/^/$(calc "$(date +%s.%N) - $t0") /" >>"$dir/timeline" || true
     sleep 0.1
   done
   t1=$(date +%s.%N)
   echo "$(calc "$t1 - $t0") $most"
+}
+# timeline folder: when each task was first and last seen running, in
+# seconds from submission.
+timeline() {
+  awk '{ k = $2 == "N/A" ? "" : " " $2; if (!(k in a)) { a[k] = $1; o[++n] = k } b[k] = $1 }
+    END { for (i = 1; i <= n; i++) printf "%stask%s ran %.1f-%.1f s", i > 1 ? "; " : "", o[i], a[o[i]], b[o[i]]; print "" }' "$1/timeline"
 }
 load0=$(cut -d' ' -f1 /proc/loadavg)
 read -r s4 most4 < <(submit "$work/four")
@@ -233,6 +242,8 @@ fps4=$(calc "$n / $s4")
 printf 'slurm check: %d files, 40 s each at 8-96 kHz, zero-phase rumble-and-hum\n' $n
 printf 'slurm check: 1 task:  %.1f s, %.2f files/s\n' "$s1" "$fps1"
 printf 'slurm check: 4 tasks (%%2 at once): %.1f s, %.2f files/s (%.2fx)\n' "$s4" "$fps4" "$(calc "$fps4 / $fps1")"
+echo "slurm check: 1 task:  $(timeline "$work/one") (from submission)"
+echo "slurm check: 4 tasks: $(timeline "$work/four")"
 printf 'slurm check: (wall time from sbatch to the array'"'"'s end, Slurm'"'"'s scheduling included, on %d cores; load average %s before, %s after)\n' "$(nproc)" "$load0" "$load1"
 if [ $fail = 0 ]; then
   echo "slurm check: all passed; the daemons it started are stopped"
