@@ -391,11 +391,6 @@ func (z *zeroPhase) extendRight(pad, tail []float64, rep *EdgeReport) error {
 	return z.extrapolate(pad, tail[(m-fit)*ch:], fit, z.omegaEnd)
 }
 
-// extendExactEvery is how often (in frames) extrapolate computes a row
-// of the tone model exactly instead of turning the previous one: 1024
-// turns leave an error of about 1e-13.
-const extendExactEvery = 1024
-
 // extrapolate fits x[t] = c + sum_k (a_k cos(w_k t) + b_k sin(w_k t)),
 // t = 0..len(x)/ch-1, per channel by least squares (QR), and writes the
 // model at t = from, from+1, ... into pad.
@@ -424,25 +419,10 @@ func (z *zeroPhase) extrapolate(pad, x []float64, from int, omega []float64) err
 	if err := qr.SolveTo(&coef, false, b); err != nil {
 		return fmt.Errorf("process: tone extension: the fit is ill-conditioned (tones too close for %d frames?): %w", m, err)
 	}
-	// The rows of the pad by rotation: each tone's (cos, sin) is turned
-	// by its step, and set exactly every extendExactEvery rows so that
-	// the rounding of the turns cannot build up.
 	r := make([]float64, p)
-	steps := make([]complex128, len(omega))
-	for k, w := range omega {
-		steps[k] = complex(math.Cos(w), math.Sin(w))
-	}
 	cs := coef.RawMatrix()
 	for j := 0; j < len(pad)/ch; j++ {
-		if j%extendExactEvery == 0 {
-			row(r, float64(from+j))
-		} else {
-			for k, st := range steps {
-				c, s := r[1+2*k], r[2+2*k]
-				r[1+2*k] = c*real(st) - s*imag(st)
-				r[2+2*k] = c*imag(st) + s*real(st)
-			}
-		}
+		row(r, float64(from+j))
 		for k := 0; k < ch; k++ {
 			v := 0.0
 			for i, ri := range r {
