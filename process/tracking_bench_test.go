@@ -6,7 +6,7 @@ import (
 	"testing"
 
 	"github.com/wavsieve/wavsieve/design"
-	"github.com/wavsieve/wavsieve/internal/humscene"
+	"github.com/wavsieve/wavsieve/process/humscene"
 	"github.com/wavsieve/wavsieve/process"
 )
 
