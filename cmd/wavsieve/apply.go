@@ -271,7 +271,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "apply", err, "")
 	}
 	if o.dryRun {
-		return dryRun(ctx, items, tmpl, o.asJSON, stdout, stderr)
+		return dryRun(ctx, items, tmpl, &o.sf, o.asJSON, stdout, stderr)
 	}
 	holdMemory()
 	removeStale(items, []string{o.tempDir, filepath.Dir(base)}, stderr)
@@ -469,7 +469,7 @@ func isWAVFile(p string) bool {
 
 // dryRun designs the spec at every input's rate and prints what would be
 // done; nothing is written.
-func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, asJSON bool, stdout, stderr io.Writer) int {
+func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, sf *specFlags, asJSON bool, stdout, stderr io.Writer) int {
 	var files []process.FileResult
 	failed := 0
 	for _, it := range items {
@@ -492,6 +492,9 @@ func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, asJ
 		filt, err := process.DesignContext(ctx, tmpl.Spec, f.SampleRate, it.Input)
 		if err != nil {
 			r.Status, r.Error = process.StatusFailed, err.Error()
+			if _, ok := design.ValueOf(err); ok && sf.file == "" {
+				r.Error = fmt.Sprintf("%s: at this file's %d Hz rate: %v", it.Input, f.SampleRate, sf.valueError(err))
+			}
 			failed++
 		} else {
 			for _, st := range filt.Stages {

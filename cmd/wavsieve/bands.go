@@ -80,8 +80,7 @@ of each file's levels there (PNG, or SVG with --plot-format svg).
 
 Inputs are never modified. A file that cannot be read is reported and the
 others go on. Exit codes: 0 every file measured (and charted), 1 some file
-failed or its chart could not be written, 2 usage
-error.
+failed or its chart could not be written, 2 usage error.
 
 Examples:
   # third-octave levels of the demo recordings, re full scale

@@ -252,8 +252,9 @@ wavsieve spectrum --json
    "frequencies_hz": [...], "channel_names": [...],
    "channels": [[one value per frequency], ...],
    "compare": {the same for a second file, when two are given}}
-  Density values are in FS^2/Hz (full scale squared per Hz), spectrum
-  values in FS^2.
+  Density values are in FS²/Hz (full scale squared per Hz; "units" says
+  "FS^2/Hz" in plain ASCII), spectrum values in FS² ("FS^2"); in dB they
+  are dBFS²/Hz and dBFS.
 
 wavsieve survey --json
   {"version", "threshold_db", "block_s",
