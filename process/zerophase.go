@@ -48,7 +48,10 @@ type ZeroPhaseOptions struct {
 	// ToneHz, SampleRateHz and FitFrames are for ExtendTones. Each
 	// frequency must lie strictly between 0 and SampleRateHz/2, and the
 	// fit needs at least 1 + 2*len(ToneHz) frames.
-	ToneHz       []float64
+	ToneHz []float64
+	// ToneHzEnd, if set, are the frequencies fitted at the end of the
+	// signal instead of ToneHz (as many as ToneHz): a hum that drifted.
+	ToneHzEnd    []float64
 	SampleRateHz float64
 	FitFrames    int
 
@@ -63,6 +66,10 @@ type ZeroPhaseOptions struct {
 	BlockFrames int
 
 	ioBytes int // each spill file buffer; 0 means spillIOBytes
+
+	// cascade, if set, is the filter to run instead of one built from
+	// the sections (a cascade with tracking notches).
+	cascade *Cascade
 }
 
 // EdgeReport describes the edges of a zero-phase run.
@@ -163,18 +170,22 @@ func ZeroPhaseSlice(dst, src []float64, sos []design.Section, cfg Config, opt Ze
 }
 
 type zeroPhase struct {
-	c     *Cascade
-	ch    int
-	block int
-	opt   ZeroPhaseOptions
-	omega []float64 // tone frequencies, radians per frame
+	c        *Cascade
+	ch       int
+	block    int
+	opt      ZeroPhaseOptions
+	omega    []float64 // tone frequencies, radians per frame
+	omegaEnd []float64 // at the end of the signal
 }
 
 func newZeroPhase(sos []design.Section, cfg Config, opt ZeroPhaseOptions) (*zeroPhase, error) {
 	cfg.SteadyStart = false
-	c, err := NewCascade(sos, cfg)
-	if err != nil {
-		return nil, err
+	c := opt.cascade
+	if c == nil {
+		var err error
+		if c, err = NewCascade(sos, cfg); err != nil {
+			return nil, err
+		}
 	}
 	z := &zeroPhase{c: c, ch: cfg.Channels, block: opt.BlockFrames, opt: opt}
 	if z.block == 0 {
@@ -203,6 +214,19 @@ func newZeroPhase(sos []design.Section, cfg Config, opt ZeroPhaseOptions) (*zero
 				return nil, fmt.Errorf("process: invalid tone frequency %v Hz: must lie between 0 and %v Hz (Nyquist)", f, opt.SampleRateHz/2)
 			}
 			z.omega = append(z.omega, 2*math.Pi*f/opt.SampleRateHz)
+		}
+		z.omegaEnd = z.omega
+		if opt.ToneHzEnd != nil {
+			if len(opt.ToneHzEnd) != len(opt.ToneHz) {
+				return nil, fmt.Errorf("process: %d tone frequencies at the end for %d at the start", len(opt.ToneHzEnd), len(opt.ToneHz))
+			}
+			z.omegaEnd = nil
+			for _, f := range opt.ToneHzEnd {
+				if !(f > 0 && f < opt.SampleRateHz/2) {
+					return nil, fmt.Errorf("process: invalid tone frequency %v Hz: must lie between 0 and %v Hz (Nyquist)", f, opt.SampleRateHz/2)
+				}
+				z.omegaEnd = append(z.omegaEnd, 2*math.Pi*f/opt.SampleRateHz)
+			}
 		}
 		if opt.FitFrames < 1+2*len(opt.ToneHz) {
 			return nil, fmt.Errorf("process: invalid fit length %d frames: %d tones need at least %d", opt.FitFrames, len(opt.ToneHz), 1+2*len(opt.ToneHz))
@@ -344,7 +368,7 @@ func (z *zeroPhase) extendLeft(pad, head []float64, rep *EdgeReport) error {
 	}
 	fit := min(z.opt.FitFrames, len(head)/ch)
 	rep.FitFrames = fit
-	return z.extrapolate(pad, head[:fit*ch], -n)
+	return z.extrapolate(pad, head[:fit*ch], -n, z.omega)
 }
 
 // extendRight fills pad (the frames after the signal) from the last
@@ -364,22 +388,22 @@ func (z *zeroPhase) extendRight(pad, tail []float64, rep *EdgeReport) error {
 	}
 	fit := min(z.opt.FitFrames, m)
 	rep.FitFrames = min(rep.FitFrames, fit)
-	return z.extrapolate(pad, tail[(m-fit)*ch:], fit)
+	return z.extrapolate(pad, tail[(m-fit)*ch:], fit, z.omegaEnd)
 }
 
 // extrapolate fits x[t] = c + sum_k (a_k cos(w_k t) + b_k sin(w_k t)),
 // t = 0..len(x)/ch-1, per channel by least squares (QR), and writes the
 // model at t = from, from+1, ... into pad.
-func (z *zeroPhase) extrapolate(pad, x []float64, from int) error {
+func (z *zeroPhase) extrapolate(pad, x []float64, from int, omega []float64) error {
 	ch := z.ch
 	m := len(x) / ch
-	p := 1 + 2*len(z.omega)
+	p := 1 + 2*len(omega)
 	if m < p {
-		return fmt.Errorf("process: tone extension: the signal has %d frames, the fit of %d tones needs %d", m, len(z.omega), p)
+		return fmt.Errorf("process: tone extension: the signal has %d frames, the fit of %d tones needs %d", m, len(omega), p)
 	}
 	row := func(dst []float64, t float64) {
 		dst[0] = 1
-		for k, w := range z.omega {
+		for k, w := range omega {
 			s, c := math.Sincos(w * t)
 			dst[1+2*k], dst[2+2*k] = c, s
 		}
@@ -396,12 +420,13 @@ func (z *zeroPhase) extrapolate(pad, x []float64, from int) error {
 		return fmt.Errorf("process: tone extension: the fit is ill-conditioned (tones too close for %d frames?): %w", m, err)
 	}
 	r := make([]float64, p)
+	cs := coef.RawMatrix()
 	for j := 0; j < len(pad)/ch; j++ {
 		row(r, float64(from+j))
 		for k := 0; k < ch; k++ {
 			v := 0.0
 			for i, ri := range r {
-				v += ri * coef.At(i, k)
+				v += ri * cs.Data[i*cs.Stride+k]
 			}
 			pad[j*ch+k] = v
 		}

@@ -242,10 +242,10 @@ func (s *Session) stageDB(si int, hz float64) float64 {
 
 // designRange is the range of the chain's design across [hz-b, hz+b],
 // with the zeros on or next to the unit circle in it.
-func (s *Session) designRange(hz, b float64, notch bool) (lo, hi float64) {
+func (s *Session) designRange(hz, b float64, deep bool) (lo, hi float64) {
 	lo, hi = math.Inf(1), math.Inf(-1)
 	take := func(v float64) {
-		if notch {
+		if deep {
 			v = math.Max(v, NotchDepthDB)
 		}
 		lo, hi = math.Min(lo, v), math.Max(hi, v)
@@ -311,7 +311,10 @@ func (s *Session) planPoint(p Point, usable int64) plan {
 	if pl.designed < zeroDB {
 		pl.designed = math.Inf(-1) // a zero on the unit circle, to rounding
 	}
-	notch := p.Kind == KindNotch
+	// A check compared with the design (no limit) takes a design deeper
+	// than NotchDepthDB (a zero on the unit circle: a notch centre, a
+	// band-stop's centre) as NotchDepthDB: the reading must show that depth.
+	notch := !p.HasLimit()
 	fits := func(seg int) bool { return int64(seg)*(MinSegments+1)/2 <= usable }
 	if s.o.Tone {
 		// The tone is read at its own frequency: no resolution to choose,

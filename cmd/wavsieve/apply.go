@@ -34,7 +34,13 @@ for a single input file --output may name the output file instead. Inputs
 are never modified, outputs are written to a temporary file and renamed into
 place when complete, and an output that already exists complete, made with
 the same design, is skipped unless --replace is given. A file whose rate cannot take the spec (an edge
-at or above its Nyquist frequency) fails alone; the others go on.
+at or above its Nyquist frequency) fails alone; the others go on. So does
+anything that is not a regular file (a FIFO, a device, a symbolic link at
+an output's name), an input shorter than its header says (--allow-short
+writes what was read, with a warning) and NaN or infinite float samples
+(--allow-nonfinite replaces them by zero, counted in the record). The
+temporary files of a run that was killed are removed by the next run into
+the same folder. Peak memory stays under 256 MB whatever the input and -j.
 
 With --zero-phase the filter runs forward, then backward over a temporary
 spill file beside the output (or in --temp-dir), so files larger than memory
@@ -83,24 +89,25 @@ Flags:
 `
 
 type applyOpts struct {
-	sf         specFlags
-	output     string
-	recursive  bool
-	replace    bool
-	workers    int
-	shard      string
-	dryRun     bool
-	asJSON     bool
-	manifest   string
-	sampleFmt  string
-	noDither   bool
-	seed       uint64
-	channels   string
-	steady     bool
-	tempDir    string
-	nonFinite  bool
-	allowShort bool
-	noProgress bool
+	sf              specFlags
+	output          string
+	recursive       bool
+	replace         bool
+	workers         int
+	shard           string
+	dryRun          bool
+	asJSON          bool
+	manifest        string
+	sampleFmt       string
+	noDither        bool
+	seed            uint64
+	channels        string
+	steady          bool
+	tempDir         string
+	nonFinite       bool
+	allowShort      bool
+	trackPerChannel bool
+	noProgress      bool
 }
 
 func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
@@ -120,6 +127,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
 	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
 	fs.StringVar(&o.channels, "channels", "", "filter only these channels, counted from 1 (`list` such as 1,3); others pass through")
+	fs.BoolVar(&o.trackPerChannel, "track-per-channel", false, "with --track: follow the hum in each channel on its own (default: one track from all channels)")
 	fs.BoolVar(&o.steady, "steady-start", false, "causal runs start settled on the first sample, so a DC offset gives no thump")
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")
 	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "replace NaN and infinite float samples by zero (counted per channel in the manifest) instead of refusing the file")
@@ -166,6 +174,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "apply", usagef("--workers must be at least 1"), "")
 	}
 	tmpl := process.FileJob{Spec: spec, NoDither: o.noDither, DitherSeed: o.seed, SteadyStart: o.steady, TempDir: o.tempDir, AllowNonFinite: o.nonFinite, AllowShort: o.allowShort}
+	tmpl.NewTracker, tmpl.TrackPerChannel = newHumTracker, o.trackPerChannel
 	if o.sampleFmt != "" {
 		enc, bits, err := parseSampleFormat(o.sampleFmt)
 		if err != nil {
@@ -264,7 +273,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "apply", err, "")
 	}
 	if o.dryRun {
-		return dryRun(ctx, items, tmpl, o.asJSON, stdout, stderr)
+		return dryRun(ctx, items, tmpl, &o.sf, o.asJSON, stdout, stderr)
 	}
 	holdMemory()
 	removeStale(items, []string{o.tempDir, filepath.Dir(base)}, stderr)
@@ -462,7 +471,7 @@ func isWAVFile(p string) bool {
 
 // dryRun designs the spec at every input's rate and prints what would be
 // done; nothing is written.
-func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, asJSON bool, stdout, stderr io.Writer) int {
+func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, sf *specFlags, asJSON bool, stdout, stderr io.Writer) int {
 	var files []process.FileResult
 	failed := 0
 	for _, it := range items {
@@ -485,6 +494,9 @@ func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, asJ
 		filt, err := process.DesignContext(ctx, tmpl.Spec, f.SampleRate, it.Input)
 		if err != nil {
 			r.Status, r.Error = process.StatusFailed, err.Error()
+			if _, ok := design.ValueOf(err); ok && sf.file == "" {
+				r.Error = fmt.Sprintf("%s: at this file's %d Hz rate: %v", it.Input, f.SampleRate, sf.valueError(err))
+			}
 			failed++
 		} else {
 			for _, st := range filt.Stages {

@@ -133,3 +133,13 @@ func TestReportToStdout(t *testing.T) {
 		t.Error("a file named - was written")
 	}
 }
+
+// TestDryRunNamesTheFlag: the dry run says which flag's value a file's
+// rate cannot take, as the run itself does.
+func TestDryRunNamesTheFlag(t *testing.T) {
+	code, out, _ := runCmd(t, "apply", "--dry-run", "--family", "butterworth", "--response", "lowpass", "--order", "2", "--cutoff", "7000",
+		"--output", filepath.Join(t.TempDir(), "o"), "../../samples/pumphouse-vibration-12800.wav")
+	if code != exitFail || !strings.Contains(out, "would fail: ") || !strings.Contains(out, "--cutoff 7000 Hz is at or above the Nyquist frequency 6400 Hz") || strings.Contains(out, "cutoff_hz") {
+		t.Errorf("exit %d, stdout:\n%s", code, out)
+	}
+}

@@ -28,7 +28,7 @@ transformed, and the periodograms are averaged (by the mean, or with
 --median by the per-bin median, which resists bursts). Windows are
 periodic: hann (default), hamming, blackman-harris, flat-top, rectangular
 or kaiser:BETA. --scaling density gives FS²/Hz (FS: digital full scale),
-spectrum gives FS^2, where a sinusoid's bin reads its power.
+spectrum gives FS², where a sinusoid's bin reads its power.
 
 Each channel gets its own spectrum, or with --average-channels one
 spectrum, the mean over the channels. The file is read in chunks, so its
