@@ -1,9 +1,12 @@
 package analyze
 
 import (
+	"encoding/json"
 	"errors"
 	"math"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
 	"testing"
 
 	"github.com/wavsieve/wavsieve/design"
@@ -47,7 +50,7 @@ func bankNoise(n int, seed uint64) []float64 {
 // design, so the reading differs only by the start-up of the filters and
 // the passband ripple of the anti-alias low-passes.
 func TestBankTonesAtMidbands(t *testing.T) {
-	const tolDB = 0.1 // issue requirement: within 0.1 dB
+	const tolDB = 0.1 // the band levels' target: a tone reads its RMS level within 0.1 dB
 	const amp = 0.5
 	for _, tc := range []struct {
 		name     string
@@ -164,7 +167,7 @@ func TestBankEnergy(t *testing.T) {
 // the levels: the same noise through the multirate bank and through the
 // same bands all at the file's rate agrees to 0.05 dB in every band.
 func TestBankMultirateMatchesFullRate(t *testing.T) {
-	const tolDB = 0.05 // issue requirement
+	const tolDB = 0.05 // the band levels' target: multirate and full rate agree to 0.05 dB
 	for _, rate := range []float64{44100, 48000} {
 		x := bankNoise(int(rate*20), 11)
 		// Pink-ish weighting keeps the low bands from being starved: add a
@@ -329,6 +332,108 @@ func TestBankResponseInsideMask(t *testing.T) {
 			if got := read(hz) - ref; got > -70 {
 				t.Errorf("band %s: a tone at %.2f Hz, folding onto fm at the %g Hz rate, reads %.1f dB re fm, want -70 or less", bd.Label, hz, r, got)
 			}
+		}
+	}
+}
+
+// TestBankAgainstSciPy: the multirate bank's third-octave levels of a
+// test signal agree within 0.1 dB with SciPy's Butterworth band-passes
+// run over the whole signal at 48 kHz (testdata/bands/gen_bands_refs.py,
+// SciPy 1.10.1; the signal is rebuilt here bit for bit by the same
+// generator). The same bands all at the full rate match SciPy to 1e-4 dB;
+// the multirate bank differs by up to 0.08 dB in the lowest bands of this
+// 5 s signal, less on longer ones (0.04 dB at 20 s, 0.013 dB at 80 s): the
+// anti-alias low-passes delay the low bands, so a little more of the
+// signal's end is still inside the filters when the file ends.
+func TestBankAgainstSciPy(t *testing.T) {
+	const tolDB = 0.1 // the band levels' target: the same levels as SciPy to 0.1 dB
+	b, err := os.ReadFile(filepath.Join("..", "testdata", "bands", "scipy_bands_refs.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref struct {
+		Rate    float64   `json:"rate_hz"`
+		Samples int       `json:"samples"`
+		Overall float64   `json:"overall_db"`
+		First   []float64 `json:"first_samples"`
+		Bands   []struct {
+			ExactHz float64 `json:"exact_midband_hz"`
+			LevelDB float64 `json:"level_db"`
+		} `json:"bands"`
+	}
+	if err := json.Unmarshal(b, &ref); err != nil {
+		t.Fatal(err)
+	}
+	// The generator of gen_bands_refs.py: xorshift64* noise through
+	// y[n] = u[n] + 0.995 y[n-1], plus a 0.25 sine at 1 kHz.
+	x := make([]float64, ref.Samples)
+	s, y := uint64(0x9E3779B97F4A7C15), 0.0
+	for i := range x {
+		s ^= s >> 12
+		s ^= s << 25
+		s ^= s >> 27
+		u := float64((s*2685821657736338717)>>11)*math.Ldexp(1, -53) - 0.5
+		y = u + 0.995*y
+		x[i] = y + 0.25*math.Sin(2*math.Pi*1000*float64(i)/ref.Rate)
+	}
+	for i, v := range ref.First {
+		if math.Abs(x[i]-v) > 1e-12 {
+			t.Fatalf("sample %d: %g, the generator gave %g", i, x[i], v)
+		}
+	}
+	lv, bank := bankLevels(t, BankOptions{SampleRate: ref.Rate, Channels: 1, Fraction: 3, FromHz: 25, ToHz: 16000}, x)
+	if len(bank.Bands()) != len(ref.Bands) {
+		t.Fatalf("%d bands, SciPy %d", len(bank.Bands()), len(ref.Bands))
+	}
+	if d := msDB(lv.Overall[0]) - ref.Overall; math.Abs(d) > 1e-9 {
+		t.Errorf("overall %.6f dB, NumPy %.6f dB", msDB(lv.Overall[0]), ref.Overall)
+	}
+	worst := 0.0
+	for i, bd := range bank.Bands() {
+		if math.Abs(bd.ExactHz/ref.Bands[i].ExactHz-1) > 1e-12 {
+			t.Fatalf("band %d: %g Hz, SciPy %g Hz", i, bd.ExactHz, ref.Bands[i].ExactHz)
+		}
+		d := msDB(lv.Bands[0][i]) - ref.Bands[i].LevelDB
+		worst = math.Max(worst, math.Abs(d))
+		if math.Abs(d) > tolDB {
+			t.Errorf("band %s: %.3f dB, SciPy %.3f dB", bd.Label, msDB(lv.Bands[0][i]), ref.Bands[i].LevelDB)
+		}
+	}
+	t.Logf("largest difference from SciPy: %.4f dB", worst)
+}
+
+// TestBankOtherFractions: banks of 1/2, 1/6, 1/12 and 1/24-octave bands
+// build over their default range and read a tone at the exact mid-band of
+// the band at or just above 1 kHz at its RMS level.
+func TestBankOtherFractions(t *testing.T) {
+	const tolDB = 0.1 // the band levels' target for tones at exact mid-bands
+	const rate, amp = 44100.0, 0.3
+	for _, fr := range []int{2, 6, 12, 24} {
+		b, err := NewBandBank(BankOptions{SampleRate: rate, Channels: 1, Fraction: fr})
+		if err != nil {
+			t.Fatalf("1/%d: %v", fr, err)
+		}
+		bd := design.NewBand(fr, 0)
+		x := make([]float64, int(rate*3))
+		for i := range x {
+			x[i] = amp * math.Sin(2*math.Pi*bd.ExactHz*float64(i)/rate)
+		}
+		lv := runBank(b, x)
+		found := false
+		for i, v := range b.Bands() {
+			if v.Index != 0 {
+				continue
+			}
+			found = true
+			if got, want := msDB(lv.Bands[0][i]), msDB(amp*amp/2); math.Abs(got-want) > tolDB {
+				t.Errorf("1/%d band %s: %.3f dB, want %.3f", fr, v.Label, got, want)
+			}
+		}
+		if !found {
+			t.Errorf("1/%d: no band %s in the bank", fr, bd.Label)
+		}
+		if last := b.Bands()[len(b.Bands())-1]; !(last.UpperHz < 0.45*rate) {
+			t.Errorf("1/%d: last band %s reaches %g Hz", fr, last.Label, last.UpperHz)
 		}
 	}
 }

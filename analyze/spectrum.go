@@ -36,7 +36,7 @@ func (e *Estimator) Spectra(channels [][]float64) (*Result, error) {
 	n := len(channels[0])
 	for c, x := range channels {
 		if len(x) != n {
-			return nil, fmt.Errorf("analyze: %w: channel %d has %d samples, channel 0 has %d", ErrInvalidOption, c, len(x), n)
+			return nil, fmt.Errorf("analyze: %w: channel %d has %d samples, channel 1 has %d (channels counted from 1)", ErrInvalidOption, c+1, len(x), n)
 		}
 	}
 	if err := e.checkLen(n); err != nil {

@@ -186,7 +186,8 @@ func BandsBetween(b int, fromHz, toHz float64) []Band {
 // powers x of G of the normalised frequency Omega = f/fm; attenuation is
 // in dB, positive meaning the filter attenuates more than at fm. For a
 // 1/b-octave filter the breakpoint frequencies on the upper side are
-// (5.10, the mapping under Table 1)
+// (5.10; where the standard states it is quoted from memory, the formula
+// reproduces the one-third-octave frequencies of Annex F, tested)
 //
 //	Omega_b(x) = 1 + ((G^(1/(2b)) - 1) / (G^(1/2) - 1)) (G^x - 1)
 //
@@ -194,10 +195,11 @@ func BandsBetween(b int, fromHz, toHz float64) []Band {
 // limits run straight in dB against log frequency (quoted from memory);
 // beyond x = 4 the minimum stays at 70 dB.
 //
-// Transcribed from open transcriptions of Table 1 (two independent ones
-// agree: see testdata/bands/README.md); the same values are committed in
-// testdata/bands/iec61260-1-2014-class1.json, which the tests compare
-// with this table.
+// Taken from two open transcriptions of Table 1, which agree with each
+// other and with our memory of the table (both come from one author, so
+// they are not independent: see testdata/bands/README.md); the same
+// values are committed in testdata/bands/iec61260-1-2014-class1.json,
+// which the tests compare with this table.
 var class1Table = []class1Row{
 	{X: 0, MinDB: -0.4, MaxDB: 0.4},
 	{X: 1.0 / 8, MinDB: -0.4, MaxDB: 0.5},
@@ -240,7 +242,7 @@ func BandOmega(b int, x float64) float64 {
 // Class1Limits returns the class 1 acceptance limits of IEC 61260-1:2014
 // on the relative response (dB re the response at fm, so the negative of
 // the relative attenuation) of a 1/b-octave filter at frequency f: the
-// response must lie in [lo, hi]; hi is +Inf nowhere and lo is -Inf in
+// response must lie in [lo, hi]; hi is always finite, and lo is -Inf in
 // the stopband (no maximum attenuation there). At the band edges both
 // rows of Table 1 apply: the response must lie in [-5.3, -1.2].
 func Class1Limits(b int, fm, f float64) (lo, hi float64) {

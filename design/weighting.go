@@ -551,7 +551,7 @@ func checkWeighting(_ *family, st Stage, rate float64) error {
 // buildWeighting designs a weighting stage.
 func buildWeighting(_ *family, d *Designed, rate, passes float64) error {
 	if passes != 1 {
-		return errorf(ErrInvalid, "invalid spec: a %s weighting is defined for one causal pass; remove zero_phase (forward-backward would square it)", d.Spec.Curve)
+		return errorf(ErrInvalid, "invalid spec: the %s weighting is defined for one causal pass; remove zero_phase or --zero-phase (forward-backward would square it)", d.Spec.Curve)
 	}
 	c, _ := lookupCurve(d.Spec.Curve)
 	zpk, info := designWeighting(c, rate)

@@ -201,25 +201,16 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 		}
 		byOut[oa] = f.Path
 		it := Item{Input: f.Path, Output: out}
-		// Only regular files are opened: opening a pipe would wait for a
-		// writer that may never come.
-		if st, err := os.Stat(f.Path); err != nil {
-			f.Err = err
-		} else if !st.Mode().IsRegular() {
-			f.Err = fmt.Errorf("not a regular file (%s)", st.Mode().Type())
-			it.Refuse = fmt.Sprintf("%s: not a regular file but a %s; give WAV files", f.Path, kindOf(st.Mode()))
-		} else if r, err := wavio.Open(f.Path, nil); err != nil {
+		// wavio.Open refuses what is not a regular file (a FIFO would wait
+		// for a writer) before opening it.
+		if r, err := wavio.Open(f.Path, nil); err != nil {
 			f.Err = err
 		} else {
 			f.Format, f.Frames = r.Format(), r.Frames()
 			r.Close()
 		}
 		it.Source = f
-		if st, err := os.Lstat(out); err == nil && st.Mode()&fs.ModeSymlink != 0 && !opt.Replace && it.Refuse == "" {
-			// A link at the output name points at a file this run did not
-			// write: never count it as the output.
-			it.Refuse = fmt.Sprintf("%s: the output %s is a symbolic link, not a file a run wrote; remove it, or give --replace to write the output in its place", f.Path, out)
-		} else if !opt.Replace && f.Err == nil && it.Refuse == "" && completeOutput(f, out) {
+		if !opt.Replace && f.Err == nil && completeOutput(f, out) {
 			it.Skip, it.Refuse = skipOrRefuse(f, out, opt)
 		}
 		items = append(items, it)
@@ -270,21 +261,6 @@ func skipOrRefuse(f Input, out string, opt PlanOptions) (skip, refuse string) {
 		return "", fmt.Sprintf("%s: the output %s exists but was made with another design or settings; give --replace to redo it", f.Path, out)
 	}
 	return "output exists, complete and made with the same design (give --replace to redo it)", ""
-}
-
-// kindOf names a file type that is not a regular file.
-func kindOf(m fs.FileMode) string {
-	switch {
-	case m&fs.ModeNamedPipe != 0:
-		return "named pipe (FIFO)"
-	case m&fs.ModeDevice != 0:
-		return "device"
-	case m&fs.ModeSocket != 0:
-		return "socket"
-	case m.IsDir():
-		return "folder"
-	}
-	return "special file"
 }
 
 func isWAVName(n string) bool {

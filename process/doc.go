@@ -56,10 +56,12 @@
 // a file in a directory the caller names), the backward pass runs over
 // it from the end in place (the kernel steps back through the frames,
 // so nothing is reversed or copied), and a last forward read delivers
-// the result in forward order. Memory stays under 200 MB (spill part,
-// 8 MiB of file buffers, edge buffers under 48 MiB, blocks) whatever
-// the file's length: 140 MB peak resident for `wavsieve apply
-// --zero-phase` on 10 minutes and on 1 hour of 48 kHz 24-bit stereo.
+// the result in forward order. Memory is bounded whatever the file's
+// length (spill part, 8 MiB of file buffers, edge buffers under 48 MiB,
+// blocks): 140 MB peak resident for `wavsieve apply --zero-phase` on 10
+// minutes and on 1 hour of 48 kHz 24-bit stereo. [Run] shares the spills
+// and the edge buffers of all its workers within [MemoryBudget], so that
+// a batch stays under 256 MB whatever the number of workers.
 // [ZeroPhaseSlice] does the same in memory, with the same result bit
 // for bit.
 //

@@ -4,7 +4,12 @@ import (
 	"context"
 	"fmt"
 	"sync"
+	"sync/atomic"
 )
+
+// mappedBytes is the memory mapped outside the Go heap for spills (see
+// mapSamples) at this moment, for the memory tests and benchmarks.
+var mappedBytes atomic.Int64
 
 // Memory of a batch run.
 //

@@ -23,10 +23,14 @@ func mapSamples(n int) (x []float64, release func()) {
 	if err != nil {
 		return make([]float64, n), func() {}
 	}
+	mappedBytes.Add(int64(size))
 	skip := int((huge - uintptr(unsafe.Pointer(&b[0]))%huge) % huge)
 	syscall.Madvise(b[skip:], syscall.MADV_HUGEPAGE) // advice only: no error matters
 	x = unsafe.Slice((*float64)(unsafe.Pointer(&b[skip])), n)
-	return x, func() { syscall.Munmap(b) }
+	return x, func() {
+		syscall.Munmap(b)
+		mappedBytes.Add(-int64(size))
+	}
 }
 
 // madvPopulateWrite is MADV_POPULATE_WRITE (Linux 5.14), not in package

@@ -5,7 +5,8 @@
 #      notches, zero-phase) and the pump-house vibration logger (a zero-phase
 #      elliptic low-pass), each file designed at its own sample rate, verifying
 #      every output against the spec,
-#   3. write one HTML report of all of it.
+#   3. measure third-octave band levels of the recordings before and after,
+#   4. write one HTML report of all of it.
 # Everything goes under out/demo (or the folder given as the first argument).
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -26,7 +27,10 @@ echo "== filter the vibration logger"
 "$ws" apply --spec samples/specs/vibration-lowpass-zero-phase.json --verify --replace \
   --output "$out/pumphouse" samples/pumphouse-vibration-12800.wav
 
+echo "== third-octave band levels, before and after"
+"$ws" bands --json samples/reedmere-*.wav "$out"/reedmere/reedmere-*.wav >"$out/bands.json"
+
 echo "== report"
 "$ws" report --from "$out/reedmere/wavsieve-manifest.json" --from "$out/pumphouse/wavsieve-manifest.json" \
-  --from "$out/survey.json" --output "$out/report.html"
+  --from "$out/survey.json" --from "$out/bands.json" --output "$out/report.html"
 echo "Open $out/report.html in a browser."

@@ -135,7 +135,7 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 			{"input", f.Input}, {"output", f.Output}, {"format", f.Format + " → " + f.OutFormat},
 			{"duration", fmt.Sprintf("%.3f s (%d frames)", f.DurationS, f.Frames)}, {"filtering", mode},
 			{"peak in / out", fmtList(f.PeakInDBFS) + " / " + fmtList(f.PeakOutDBFS) + " dBFS"},
-			{"clipped samples", fmt.Sprint(f.Clipped)}, {"time taken", fmt.Sprintf("%.2f s", f.Seconds)},
+			{"clipped samples", fmtCounts(f.Clipped)}, {"time taken", fmt.Sprintf("%.2f s", f.Seconds)},
 		}
 		if f.ZeroPhase {
 			sec.Facts = append(sec.Facts, [2]string{"end padding", fmt.Sprintf("%d frames at each end; %d frames of transient may remain", f.PadFrames, f.EdgeTransient)})
@@ -463,6 +463,19 @@ func fmtList(v []float64) string {
 	s := make([]string, len(v))
 	for i, x := range v {
 		s[i] = fmt.Sprintf("%.2f", x)
+	}
+	return strings.Join(s, ", ")
+}
+
+// fmtCounts writes per-channel counts as "0, 12" (one per channel, like
+// the peaks beside them), never as a Go slice.
+func fmtCounts(v []int64) string {
+	if len(v) == 0 {
+		return "0"
+	}
+	s := make([]string, len(v))
+	for i, x := range v {
+		s[i] = strconv.FormatInt(x, 10)
 	}
 	return strings.Join(s, ", ")
 }

@@ -42,7 +42,7 @@ func TestFromApply(t *testing.T) {
 		"spec": map[string]any{"stages": []any{map[string]any{"family": "notch", "fundamental_hz": 50, "bandwidth_hz": 2, "harmonics": 3}}},
 		"files": []any{
 			map[string]any{"input": in, "output": out, "sample_rate_hz": 8000, "channels": 2, "frames": 4000, "status": "done", "error": "",
-				"peak_in_dbfs": []float64{-14, -14}, "peak_out_dbfs": []float64{-20, -20}, "clipped_samples": []int64{0, 0},
+				"peak_in_dbfs": []float64{-14, -14}, "peak_out_dbfs": []float64{-20, -20}, "clipped_samples": []int64{0, 12},
 				"verify": map[string]any{"pass": true, "checks": []any{map[string]any{"frequency_hz": 50, "kind": "notch", "designed_db": -300.0, "measured_db": v, "limit_db": -40.0, "margin_db": 5.5, "verdict": "pass"}}}},
 			map[string]any{"input": filepath.Join(dir, "bad.wav"), "output": "", "status": "failed", "error": "bad.wav: at this file's 8000 Hz rate: design: something"},
 		},
@@ -60,6 +60,11 @@ func TestFromApply(t *testing.T) {
 	// Two plots for the done file (spectra, design), none for the failed one.
 	if n := strings.Count(s, "<svg"); n != 2 {
 		t.Errorf("%d inline SVG plots, want 2", n)
+	}
+	// Clipped samples per channel, written as the peaks are ("0, 12"), not
+	// as a Go slice ("[0 12]").
+	if strings.Contains(s, "[0 12]") || !strings.Contains(s, "0, 12") {
+		t.Error("clipped samples not written as a per-channel list \"0, 12\"")
 	}
 	for _, want := range []string{"in.wav", "bad.wav", "failed: bad.wav", "Verification", "-45.50", `class="pass"`, `class="failed"`, "class=\"sortable", "no calibrated certification"} {
 		if !strings.Contains(s, want) {

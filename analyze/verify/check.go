@@ -80,10 +80,11 @@ const (
 	// figure assumes white quantisation error; dither raises it by up to
 	// 4.8 dB).
 	FloorMarginDB = 6.0
-	// NotchDepthDB is the depth a notch centre must be shown to reach when
-	// its design is deeper (a digital notch has its zero on the unit
-	// circle, so its design is minus infinity): a reading at or below it
-	// agrees with the design.
+	// NotchDepthDB is the depth a check compared with the design (a notch
+	// centre, any point without a limit) must be shown to reach where the
+	// design is deeper (a digital notch has its zero on the unit circle, so
+	// its design is minus infinity): a reading at or below it agrees with
+	// the design.
 	NotchDepthDB = -100.0
 	// FailCoherence is the least coherence at which a reading that puts
 	// the gain above a limit or the design fails the check; below it the
@@ -94,7 +95,7 @@ const (
 	// MaxSegments the most (beyond it the interval is narrow enough, and
 	// the work stays bounded on long files).
 	MinSegments = 8
-	MaxSegments = 1024
+	MaxSegments = 256
 	// MinSegment and MaxSegment bound the segment lengths (powers of two).
 	MinSegment = 256
 	MaxSegment = 1 << 22
@@ -313,8 +314,9 @@ type Check struct {
 	FrequencyHz float64 `json:"frequency_hz"` // the check's exact frequency
 	// DesignedDB is the designed effective response of the whole chain at
 	// FrequencyHz; DesignRangeDB what the design gives across the
-	// resolution of the reading (for a notch centre, down from
-	// NotchDepthDB), the range a reading agreeing with the design lies in.
+	// resolution of the reading (where the design is deeper than
+	// NotchDepthDB and the check has no limit, down from NotchDepthDB), the
+	// range a reading agreeing with the design lies in.
 	DesignedDB    *float64 `json:"designed_db"`
 	DesignRangeDB *Pair    `json:"design_range_db"`
 	MeasuredDB    *float64 `json:"measured_db"`

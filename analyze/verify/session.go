@@ -25,6 +25,16 @@ var bhTerms = [4]float64{0.35875, 0.48829, 0.14128, 0.01168}
 // dB down needs the start-up transient well below it.
 const toneDecayDB = 140
 
+// psdSegments is the most segments whose whole spectrum is taken for the
+// leakage rule: it needs the shape of the input's spectrum, not a precise
+// level, and the FFT of a long segment costs more than its readings.
+// psdSamples bounds the samples so transformed for long segments (at
+// least 4 segments are).
+const (
+	psdSegments = 32
+	psdSamples  = 1 << 23
+)
+
 // zeroDB: a designed response below it is a zero on the unit circle
 // evaluated with rounding error, and is written as minus infinity.
 const zeroDB = -300
@@ -128,6 +138,8 @@ type Session struct {
 	plans  []plan
 	groups []*group
 	acc    [][]sums // [plan][checked channel]
+	// windows holds the windows made, by length.
+	windows map[int][]float64
 }
 
 // NewSession prepares the reading of a run of f over frames frames of
@@ -178,7 +190,7 @@ func NewSession(f *design.Filter, pts []Point, channels int, frames int64, o Opt
 }
 
 func (s *Session) newGroup(seg int) *group {
-	g := &group{seg: seg, win: window.Coefficients(nil, seg)}
+	g := &group{seg: seg, win: s.windowOf(seg)}
 	var c float64
 	for t, w := range g.win {
 		g.sumW2 += w * w
@@ -193,6 +205,10 @@ func (s *Session) newGroup(seg int) *group {
 	}
 	g.enbw = float64(seg) * g.sumW2 / (sw * sw)
 	g.bx, g.by = make([][]float64, len(s.chans)), make([][]float64, len(s.chans))
+	for i := range g.bx {
+		g.bx[i] = make([]float64, 0, seg+seg/2)
+		g.by[i] = make([]float64, 0, seg+seg/2)
+	}
 	g.wx, g.wy = make([]float64, seg), make([]float64, seg)
 	if !s.o.Tone {
 		g.psd = make([][]float64, len(s.chans))
@@ -205,6 +221,19 @@ func (s *Session) newGroup(seg int) *group {
 	return g
 }
 
+// windowOf returns the window of length seg, made once per session.
+func (s *Session) windowOf(seg int) []float64 {
+	if w, ok := s.windows[seg]; ok {
+		return w
+	}
+	if s.windows == nil {
+		s.windows = map[int][]float64{}
+	}
+	w := window.Coefficients(nil, seg)
+	s.windows[seg] = w
+	return w
+}
+
 // stageDB is the effective response of stage si alone.
 func (s *Session) stageDB(si int, hz float64) float64 {
 	one := &design.Filter{SampleRate: s.f.SampleRate, ZeroPhase: s.f.ZeroPhase, Stages: []design.Designed{s.f.Stages[si]}}
@@ -213,10 +242,10 @@ func (s *Session) stageDB(si int, hz float64) float64 {
 
 // designRange is the range of the chain's design across [hz-b, hz+b],
 // with the zeros on or next to the unit circle in it.
-func (s *Session) designRange(hz, b float64, notch bool) (lo, hi float64) {
+func (s *Session) designRange(hz, b float64, deep bool) (lo, hi float64) {
 	lo, hi = math.Inf(1), math.Inf(-1)
 	take := func(v float64) {
-		if notch {
+		if deep {
 			v = math.Max(v, NotchDepthDB)
 		}
 		lo, hi = math.Min(lo, v), math.Max(hi, v)
@@ -256,7 +285,7 @@ func (s *Session) delayBias(hz float64, seg int) float64 {
 	if int(d) >= seg-1 {
 		return math.Inf(-1)
 	}
-	w := window.Coefficients(nil, seg)
+	w := s.windowOf(seg)
 	corr := func(m int) float64 {
 		var c float64
 		for t := 0; t+m < seg; t++ {
@@ -282,7 +311,10 @@ func (s *Session) planPoint(p Point, usable int64) plan {
 	if pl.designed < zeroDB {
 		pl.designed = math.Inf(-1) // a zero on the unit circle, to rounding
 	}
-	notch := p.Kind == KindNotch
+	// A check compared with the design (no limit) takes a design deeper
+	// than NotchDepthDB (a zero on the unit circle: a notch centre, a
+	// band-stop's centre) as NotchDepthDB: the reading must show that depth.
+	notch := !p.HasLimit()
 	fits := func(seg int) bool { return int64(seg)*(MinSegments+1)/2 <= usable }
 	if s.o.Tone {
 		// The tone is read at its own frequency: no resolution to choose,
@@ -377,6 +409,17 @@ func (s *Session) Feed(x, y []float64) error {
 		if g.finished {
 			continue
 		}
+		// Move the unread tail to the front when the buffers would have
+		// to grow: each sample is then copied about once.
+		if g.start > 0 && len(g.bx[0])+int(hi-lo) > cap(g.bx[0]) {
+			for i := range g.bx {
+				k := copy(g.bx[i], g.bx[i][g.start:])
+				g.bx[i] = g.bx[i][:k]
+				copy(g.by[i], g.by[i][g.start:])
+				g.by[i] = g.by[i][:k]
+			}
+			g.start = 0
+		}
 		for i, c := range s.chans {
 			for t := lo; t < hi; t++ {
 				g.bx[i] = append(g.bx[i], x[int(t)*s.nc+c])
@@ -391,16 +434,6 @@ func (s *Session) Feed(x, y []float64) error {
 		if g.segs >= max {
 			g.finished = true
 			g.bx, g.by = nil, nil
-			continue
-		}
-		if g.start >= len(g.bx[0])/2 {
-			for i := range g.bx {
-				k := copy(g.bx[i], g.bx[i][g.start:])
-				g.bx[i] = g.bx[i][:k]
-				copy(g.by[i], g.by[i][g.start:])
-				g.by[i] = g.by[i][:k]
-			}
-			g.start = 0
 		}
 	}
 	return nil
@@ -434,7 +467,7 @@ func (s *Session) segment(g *group) {
 			a.xy += cmplx.Conj(X) * Y
 			a.n++
 		}
-		if g.psd != nil {
+		if g.psd != nil && g.segs < max(4, min(psdSegments, psdSamples/g.seg)) {
 			g.fft.Coefficients(g.coef, g.wx)
 			for k, c := range g.coef {
 				g.psd[ci][k] += real(c)*real(c) + imag(c)*imag(c)

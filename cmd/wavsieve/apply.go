@@ -34,7 +34,13 @@ for a single input file --output may name the output file instead. Inputs
 are never modified, outputs are written to a temporary file and renamed into
 place when complete, and an output that already exists complete, made with
 the same design, is skipped unless --replace is given. A file whose rate cannot take the spec (an edge
-at or above its Nyquist frequency) fails alone; the others go on.
+at or above its Nyquist frequency) fails alone; the others go on. So does
+anything that is not a regular file (a FIFO, a device, a symbolic link at
+an output's name), an input shorter than its header says (--allow-short
+writes what was read, with a warning) and NaN or infinite float samples
+(--allow-nonfinite replaces them by zero, counted in the record). The
+temporary files of a run that was killed are removed by the next run into
+the same folder. Peak memory stays under 256 MB whatever the input and -j.
 
 With --zero-phase the filter runs forward, then backward over a temporary
 spill file beside the output (or in --temp-dir), so files larger than memory
@@ -232,7 +238,10 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		unlock, err := runrecord.Lock(ctx, base, func() {
 			fmt.Fprintf(stderr, "wavsieve apply: waiting for another run that writes the record %s.json to finish\n", base)
 		})
-		if err != nil {
+		switch {
+		case errors.Is(err, runrecord.ErrNoLocks):
+			fmt.Fprintf(stderr, "wavsieve apply: warning: %v; runs into this folder at the same time could lose each other's rows of the record\n", err)
+		case err != nil:
 			return report(stderr, "apply", fmt.Errorf("cannot take the record's lock: %w", err), "give --manifest a path in a folder you can write")
 		}
 		defer unlock()
@@ -264,7 +273,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "apply", err, "")
 	}
 	if o.dryRun {
-		return dryRun(ctx, items, tmpl, o.asJSON, stdout, stderr)
+		return dryRun(ctx, items, tmpl, &o.sf, o.asJSON, stdout, stderr)
 	}
 	holdMemory()
 	removeStale(items, []string{o.tempDir, filepath.Dir(base)}, stderr)
@@ -462,7 +471,7 @@ func isWAVFile(p string) bool {
 
 // dryRun designs the spec at every input's rate and prints what would be
 // done; nothing is written.
-func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, asJSON bool, stdout, stderr io.Writer) int {
+func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, sf *specFlags, asJSON bool, stdout, stderr io.Writer) int {
 	var files []process.FileResult
 	failed := 0
 	for _, it := range items {
@@ -485,6 +494,9 @@ func dryRun(ctx context.Context, items []process.Item, tmpl process.FileJob, asJ
 		filt, err := process.DesignContext(ctx, tmpl.Spec, f.SampleRate, it.Input)
 		if err != nil {
 			r.Status, r.Error = process.StatusFailed, err.Error()
+			if _, ok := design.ValueOf(err); ok && sf.file == "" {
+				r.Error = fmt.Sprintf("%s: at this file's %d Hz rate: %v", it.Input, f.SampleRate, sf.valueError(err))
+			}
 			failed++
 		} else {
 			for _, st := range filt.Stages {

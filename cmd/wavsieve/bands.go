@@ -80,8 +80,7 @@ of each file's levels there (PNG, or SVG with --plot-format svg).
 
 Inputs are never modified. A file that cannot be read is reported and the
 others go on. Exit codes: 0 every file measured (and charted), 1 some file
-failed or its chart could not be written, 2 usage
-error.
+failed or its chart could not be written, 2 usage error.
 
 Examples:
   # third-octave levels of the demo recordings, re full scale
@@ -424,7 +423,15 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 			Channels: channelLevels(iv, bands, opt.cal),
 		})
 	}
-	if opt.plotDir != "" {
+	silent := true
+	for _, c := range bf.Channels {
+		for _, b := range c.Bands {
+			silent = silent && b.LevelDB == nil
+		}
+	}
+	if opt.plotDir != "" && silent {
+		bf.Warnings = append(bf.Warnings, "no bar chart: every band is silent")
+	} else if opt.plotDir != "" {
 		name, err := writeBandsPlot(bf, bands, opt)
 		if err != nil {
 			bf.Warnings = append(bf.Warnings, fmt.Sprintf("bar chart not written: %v", err))

@@ -204,6 +204,9 @@ func writePlot(name string, f *design.Filter) error {
 // writeFileAtomic writes data to a temporary file in name's folder, syncs
 // it and renames it to name.
 func writeFileAtomic(name string, data []byte) error {
+	if isDir(name) {
+		return fmt.Errorf("%s is a folder; give the name of a file to write (in that folder or elsewhere)", name)
+	}
 	dir := filepath.Dir(name)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err

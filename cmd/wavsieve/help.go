@@ -238,6 +238,14 @@ wavsieve apply --json (and the run record wavsieve-manifest.json)
   The same rows are written as wavsieve-manifest.csv; runs into one
   folder add to one record, keyed by output.
 
+wavsieve bands --json
+  {"version", "caution",
+   "files": [{"path", "sample_rate_hz", "fraction", "frames", "duration_s",
+              "reference", "weighting", "filters",
+              "channels": [{"channel", "overall_db",
+                            "bands": [{"midband_hz", "exact_midband_hz",
+                                       "level_db"}]}]}]}
+
 wavsieve gather --json
   {"version", "files": [the merged record's rows, as apply's],
    "missing": [inputs no share did], "failed", "shares", "resubmit",
@@ -251,8 +259,9 @@ wavsieve spectrum --json
    "frequencies_hz": [...], "channel_names": [...],
    "channels": [[one value per frequency], ...],
    "compare": {the same for a second file, when two are given}}
-  Density values are in FS^2/Hz (full scale squared per Hz), spectrum
-  values in FS^2.
+  Density values are in FS²/Hz (full scale squared per Hz; "units" says
+  "FS^2/Hz" in plain ASCII), spectrum values in FS² ("FS^2"); in dB they
+  are dBFS²/Hz and dBFS.
 
 wavsieve survey --json
   {"version", "threshold_db", "block_s",

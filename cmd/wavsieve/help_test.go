@@ -140,3 +140,36 @@ func TestJSONGoesThroughWriteJSON(t *testing.T) {
 		}
 	}
 }
+
+// TestFlagPlaceholders: a flag's placeholder in --help (the back-quoted
+// word of its usage) must not be one of the values it takes, or the line
+// reads as if that value were the default ("--probe noise[="tones"]",
+// "--detrend none ... (default "mean")"); and the command list names
+// every kind of document report takes.
+func TestFlagPlaceholders(t *testing.T) {
+	cases := []struct {
+		name    string
+		args    []string
+		want    string
+		notWant string
+	}{
+		{"verify probe", []string{"verify", "--help"}, "--probe kind[=", "--probe noise"},
+		{"spectrum detrend", []string{"spectrum", "--help"}, "--detrend trend", "--detrend none  "},
+		{"spectrum scaling", []string{"spectrum", "--help"}, "--scaling kind", "--scaling density  "},
+		{"report in the command list", []string{"--help"}, "a survey or band levels", ""},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, out, errs := runCmd(t, c.args...)
+			if code != exitOK {
+				t.Fatalf("exit %d: %s", code, errs)
+			}
+			if !strings.Contains(out, c.want) {
+				t.Errorf("help lacks %q", c.want)
+			}
+			if c.notWant != "" && strings.Contains(out, c.notWant) {
+				t.Errorf("help still shows %q", c.notWant)
+			}
+		})
+	}
+}

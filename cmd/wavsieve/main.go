@@ -39,7 +39,7 @@ func commands() []command {
 		{"spectrum", "estimate the power spectrum of a WAV file, or compare two", runSpectrum},
 		{"verify", "measure a filtering run and check it against the spec", runVerify},
 		{"survey", "measure mains hum, drift, rumble and clipping, and suggest a filter", runSurvey},
-		{"report", "make a self-contained HTML report of an apply run or a survey", runReport},
+		{"report", "make a self-contained HTML report of an apply run, a survey or band levels", runReport},
 		{"gather", "merge the records of the shares of a run and list what is missing", runGather},
 		{"bands", "measure octave and fractional-octave band levels of WAV files", runBands},
 	}

@@ -51,6 +51,8 @@ func TestMessages(t *testing.T) {
 			[]string{"--cutoff 30000 Hz is at or above the Nyquist frequency 24000 Hz"}, []string{"design: design:", "cutoff_hz"}},
 		{"a flag's edge above one file's nyquist", []string{"apply", "--family", "elliptic", "--response", "lowpass", "--passband", "7000", "--stopband", "8000", "--ripple", "0.1", "--attenuation", "80", "--output", filepath.Join(dir, "o3"), "../../samples/pumphouse-vibration-12800.wav"}, exitFail,
 			[]string{"at this file's 12800 Hz rate: --passband 7000 Hz is at or above the Nyquist frequency 6400 Hz"}, []string{"passband_hz"}},
+		{"verify probe with a flag's edge above nyquist", []string{"verify", "--probe", "--family", "butterworth", "--response", "lowpass", "--order", "2", "--cutoff", "30000", "--rate", "48000"}, exitUsage,
+			[]string{"--cutoff 30000 Hz is at or above the Nyquist frequency 24000 Hz"}, []string{"cutoff_hz"}},
 		{"cutoff without order", []string{"design", "--family", "butterworth", "--response", "lowpass", "--cutoff", "500", "--rate", "48000"}, exitUsage,
 			[]string{"--cutoff needs --order", "--passband, --stopband"}, []string{"invalid order 0"}},
 		{"channel past the last", with(append([]string{"apply"}, lp...), "--channels", "3", "--output", filepath.Join(dir, "o2"), north), exitFail,
@@ -61,6 +63,8 @@ func TestMessages(t *testing.T) {
 			[]string{"--output -: apply writes WAV files, not standard output"}, nil},
 		{"report into a folder", []string{"report", "--from", "x.json", "--output", folder}, exitUsage,
 			[]string{"is a folder; give the report's file name"}, []string{"file exists"}},
+		{"spec written onto a folder", []string{"survey", "--write-spec", folder, "../../samples/pumphouse-vibration-12800.wav"}, exitFail,
+			[]string{"afolder is a folder; give the name of a file to write"}, []string{"file exists"}},
 		{"negative overlap", []string{"spectrum", "--overlap", "-1", north}, exitUsage,
 			[]string{"--overlap -1: give 0 or more samples"}, nil},
 	}
@@ -106,5 +110,36 @@ func TestSkipNamesReplace(t *testing.T) {
 	code, _, errs := runCmd(t, args...)
 	if code != exitOK || !strings.Contains(errs, "skipped") || !strings.Contains(errs, "--replace") {
 		t.Errorf("second run: exit %d, stderr:\n%s", code, errs)
+	}
+}
+
+// TestReportToStdout: --output - writes the page on stdout and no file
+// named "-".
+func TestReportToStdout(t *testing.T) {
+	dir := t.TempDir()
+	code, doc, errs := runCmd(t, "survey", "--json", "../../samples/pumphouse-vibration-12800.wav")
+	if code != exitOK {
+		t.Fatalf("survey: exit %d: %s", code, errs)
+	}
+	from := filepath.Join(dir, "survey.json")
+	if err := os.WriteFile(from, []byte(doc), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCmd(t, "report", "--from", from, "--output", "-")
+	if code != exitOK || !strings.HasPrefix(out, "<!DOCTYPE html>") || !strings.Contains(out, "</html>") {
+		t.Fatalf("exit %d, %d bytes on stdout starting %.40q; stderr %s", code, len(out), out, errs)
+	}
+	if _, err := os.Stat("-"); err == nil {
+		t.Error("a file named - was written")
+	}
+}
+
+// TestDryRunNamesTheFlag: the dry run says which flag's value a file's
+// rate cannot take, as the run itself does.
+func TestDryRunNamesTheFlag(t *testing.T) {
+	code, out, _ := runCmd(t, "apply", "--dry-run", "--family", "butterworth", "--response", "lowpass", "--order", "2", "--cutoff", "7000",
+		"--output", filepath.Join(t.TempDir(), "o"), "../../samples/pumphouse-vibration-12800.wav")
+	if code != exitFail || !strings.Contains(out, "would fail: ") || !strings.Contains(out, "--cutoff 7000 Hz is at or above the Nyquist frequency 6400 Hz") || strings.Contains(out, "cutoff_hz") {
+		t.Errorf("exit %d, stdout:\n%s", code, out)
 	}
 }

@@ -179,10 +179,10 @@ func readSpecFile(name string) ([]byte, error) {
 	defer f.Close()
 	b, err := io.ReadAll(io.LimitReader(f, design.MaxSpecBytes+1))
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
+		return nil, err
 	}
 	if len(b) > design.MaxSpecBytes {
-		return nil, fmt.Errorf("%s: larger than %d bytes, the limit for a spec file; is it the right file?", name, design.MaxSpecBytes)
+		return nil, fmt.Errorf("larger than %d bytes, the limit for a spec file; is it the right file?", design.MaxSpecBytes)
 	}
 	return b, nil
 }

@@ -28,7 +28,7 @@ transformed, and the periodograms are averaged (by the mean, or with
 --median by the per-bin median, which resists bursts). Windows are
 periodic: hann (default), hamming, blackman-harris, flat-top, rectangular
 or kaiser:BETA. --scaling density gives FS²/Hz (FS: digital full scale),
-spectrum gives FS^2, where a sinusoid's bin reads its power.
+spectrum gives FS², where a sinusoid's bin reads its power.
 
 Each channel gets its own spectrum, or with --average-channels one
 spectrum, the mean over the channels. The file is read in chunks, so its
@@ -84,8 +84,8 @@ func runSpectrum(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	segment := fs.Int("segment", 8192, "segment length in `samples`")
 	overlap := fs.Int("overlap", 0, "`samples` shared by neighbouring segments, 0 or more (default: half the segment)")
 	window := fs.String("window", "hann", "window `name`: hann, hamming, blackman-harris, flat-top, rectangular or kaiser:BETA")
-	scaling := fs.String("scaling", "density", "`density` (FS²/Hz) or spectrum (FS²)")
-	detrend := fs.String("detrend", "mean", "remove `none`, mean or linear trend from each segment")
+	scaling := fs.String("scaling", "density", "`kind` of values: density (FS²/Hz) or spectrum (FS²)")
+	detrend := fs.String("detrend", "mean", "`trend` removed from each segment: none, mean or linear")
 	avgCh := fs.Bool("average-channels", false, "one spectrum, the mean over the channels")
 	median := fs.Bool("median", false, "average the segments by the per-bin median instead of the mean")
 	inDB := fs.Bool("db", false, "CSV values in dB (10 log10) instead of the scaling's units")

@@ -130,7 +130,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVarP(&o.input, "input", "i", "", "the run's input WAV `file` (with --probe: the file whose rate, channels and format to probe)")
 	fs.StringVarP(&o.output, "output", "o", "", "the run's output WAV `file`")
 	fs.StringVar(&o.manifest, "manifest", "", "take the spec and the files from apply's record `file` (JSON or CSV) or output folder")
-	fs.StringVar(&o.probe, "probe", "", "verify the chain with a probe instead of the recording: tones (the default) or `noise`, as --probe=noise")
+	fs.StringVar(&o.probe, "probe", "", "verify the chain with a probe of this `kind` instead of the recording: tones (the default) or noise, written --probe=noise")
 	fs.Lookup("probe").NoOptDefVal = "tones"
 	fs.IntVar(&o.rate, "rate", 0, "with --probe and no --input: the sample rate in `Hz`")
 	fs.StringVar(&o.channels, "channels", "", "check only these channels, counted from 1 (`list` such as 1,3), as apply --channels filtered")
@@ -229,6 +229,10 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			res, err = verify.Files(ctx, p.spec, p.in, p.out, vo)
 		}
 		if err != nil {
+			if _, ok := design.ValueOf(err); ok && o.sf.file == "" && fs.Changed("family") {
+				// A value given by a flag: name the flag (a usage error).
+				return report(stderr, "verify", o.sf.valueError(err), "")
+			}
 			return report(stderr, "verify", err, verifyHint(err))
 		}
 		doc.Files = append(doc.Files, res)
@@ -359,6 +363,23 @@ func runProbe(ctx context.Context, spec design.Spec, in, out string, o verifyOpt
 	return verify.ToneProbe(ctx, ch, vo)
 }
 
+// openChecks counts the decisive checks that did not pass and names their
+// kinds for the verdict line: a standard's mask rows are named as such,
+// not as edges.
+func openChecks(checks []verify.Check) (int, string) {
+	open, mask := 0, false
+	for _, c := range checks {
+		if verify.Decisive(c.Kind) && c.Verdict != verify.Pass {
+			open++
+			mask = mask || c.Kind == verify.KindMask
+		}
+	}
+	if mask {
+		return open, "edge, cutoff, notch or mask"
+	}
+	return open, "edge, cutoff or notch"
+}
+
 func printVerify(w io.Writer, r *verify.Result) {
 	mode := "causal"
 	if r.ZeroPhase {
@@ -407,15 +428,9 @@ func printVerify(w io.Writer, r *verify.Result) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}
 	}
-	open := 0
-	for _, c := range r.Checks {
-		if verify.Decisive(c.Kind) && c.Verdict != verify.Pass {
-			open++
-		}
-	}
 	fmt.Fprintf(w, "\nVerdict: %s (%d passed, %d failed, %d unmeasurable", r.Verdict, r.Passed, r.Failed, r.Unmeasurable)
-	if open > 0 && r.Verdict != verify.Fail {
-		fmt.Fprintf(w, "; %d edge, cutoff or notch checks not shown to pass", open)
+	if open, what := openChecks(r.Checks); open > 0 && r.Verdict != verify.Fail {
+		fmt.Fprintf(w, "; %d %s checks not shown to pass", open, what)
 	}
 	fmt.Fprintln(w, ")")
 	if r.Verdict == verify.Inconclusive && r.Method == "recording" {

@@ -134,6 +134,9 @@ func TestVerifyUnmeasurableBelowDitherFloor(t *testing.T) {
 	if code != 3 {
 		t.Fatalf("exit %d, want 3: an unmeasured stopband edge makes the run inconclusive, not failed: %s\n%s", code, stderr, stdout)
 	}
+	if testing.Verbose() {
+		t.Log(stdout)
+	}
 	for _, want := range []string{"unmeasurable", "floor", "not a calibrated certification", "Verdict: inconclusive"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("table lacks %q:\n%s", want, stdout)

@@ -85,7 +85,7 @@ func TestWeightingFlagChains(t *testing.T) {
 		want string
 	}{
 		{"unknown curve", []string{"design", "--weighting", "B", "--rate", "48000"}, exitFail, "unsupported weighting curve \"B\""},
-		{"zero phase", []string{"design", "--weighting", "A", "--zero-phase", "--rate", "48000"}, exitFail, "one causal pass"},
+		{"zero phase", []string{"design", "--weighting", "A", "--zero-phase", "--rate", "48000"}, exitFail, "the A weighting is defined for one causal pass; remove zero_phase or --zero-phase"},
 		{"flags without family", []string{"design", "--weighting", "A", "--order", "2", "--rate", "48000"}, exitUsage, "need --family"},
 		{"rate too low", []string{"design", "--weighting", "Wh", "--rate", "2000"}, exitFail, "sample rate of at least"},
 	}

@@ -180,7 +180,7 @@ func Base(dir string, k, n int) string {
 // it is never overwritten.
 func Update(ctx context.Context, base string, fn func(*Record) error) error {
 	unlock, err := Lock(ctx, base, nil)
-	if err != nil {
+	if err != nil && !errors.Is(err, ErrNoLocks) {
 		return err
 	}
 	defer unlock()
@@ -217,6 +217,12 @@ func LockPath(base string) string {
 	return filepath.Join(filepath.Dir(base), "."+filepath.Base(base)+".lock")
 }
 
+// ErrNoLocks: the file system of the record offers no file locks. Lock
+// then returns it with an unlock function that does nothing; the caller
+// may go on without the lock, knowing that runs at the same time could
+// lose each other's rows.
+var ErrNoLocks = errors.New("the file system offers no file locks")
+
 // Lock takes the lock of the record at base, waiting while another run
 // holds it (until ctx is done). The lock is held until the returned
 // function is called, or the process ends. onWait, if not nil, is
@@ -232,6 +238,10 @@ func Lock(ctx context.Context, base string, onWait func()) (unlock func(), err e
 	}
 	for {
 		ok, err := tryLock(f)
+		if errors.Is(err, ErrNoLocks) {
+			f.Close()
+			return func() {}, fmt.Errorf("runrecord: lock %s: %w", name, err)
+		}
 		if err != nil {
 			f.Close()
 			return nil, fmt.Errorf("runrecord: lock %s: %w", name, err)

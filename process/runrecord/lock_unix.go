@@ -4,6 +4,7 @@ package runrecord
 
 import (
 	"errors"
+	"fmt"
 	"os"
 	"syscall"
 )
@@ -13,8 +14,13 @@ import (
 // killed run never leaves a folder locked.
 func tryLock(f *os.File) (bool, error) {
 	err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB)
-	if errors.Is(err, syscall.EWOULDBLOCK) {
+	switch {
+	case errors.Is(err, syscall.EWOULDBLOCK):
 		return false, nil
+	case errors.Is(err, syscall.ENOSYS), errors.Is(err, syscall.EOPNOTSUPP), errors.Is(err, syscall.ENOLCK):
+		// Some network file systems offer no locks (or have them turned
+		// off): say so, and let the caller go on without.
+		return false, fmt.Errorf("%w: %v", ErrNoLocks, err)
 	}
 	return err == nil, err
 }

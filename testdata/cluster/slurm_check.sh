@@ -161,8 +161,8 @@ submit() { # folder, extra sbatch flags...
 # timeline folder: when each task was first and last seen running, in
 # seconds from submission.
 timeline() {
-  awk '{ k = $2 == "N/A" ? "" : " " $2; if (!(k in a)) { a[k] = $1; o[++n] = k } b[k] = $1 }
-    END { for (i = 1; i <= n; i++) printf "%stask%s ran %.1f-%.1f s", i > 1 ? "; " : "", o[i], a[o[i]], b[o[i]]; print "" }' "$1/timeline"
+  awk '{ k = ($2 == "N/A") ? "" : " " $2; if (!(k in a)) { a[k] = $1; o[++n] = k } b[k] = $1 }
+    END { for (i = 1; i <= n; i++) { sep = (i > 1) ? "; " : ""; printf "%stask%s ran %.1f-%.1f s", sep, o[i], a[o[i]], b[o[i]] } print "" }' "$1/timeline"
 }
 load0=$(cut -d' ' -f1 /proc/loadavg)
 read -r s4 most4 < <(submit "$work/four")

@@ -59,6 +59,8 @@ svgs=$(grep -o '<svg' "$work/dom.html" | wc -l)
 check "plots are inline SVG ($svgs found, want at least 8)" "[ $svgs -ge 8 ]"
 check "no external resource is referenced" "! grep -Eq '(src|href)=\"(https?:)?//' '$work/report.html'"
 check "the manifest table lists every sample" "[ \$(grep -o 'reedmere-\|pumphouse-' '$work/dom.html' | wc -l) -ge 4 ]"
+rsize=$(stat -c %s "$work/report.html")
+check "the report of the four samples is under 1.5 MB ($rsize bytes)" "[ $rsize -lt 1500000 ]"
 fits() { [ -n "$1" ] && [ "${1%/*}" -le "${1#*/}" ]; }
 check "at 1400 px the page fits the window (page/window: ${wide:-unknown})" "fits '$wide'"
 check "at 390 px the page fits the window (page/window: ${narrow:-unknown})" "fits '$narrow'"
@@ -70,7 +72,7 @@ mkdir -p out
 cp "$work/shot.png" out/report-screenshot.png 2>/dev/null || true
 cp "$work/phone.png" out/report-screenshot-phone.png 2>/dev/null || true
 if [ $fail = 0 ]; then
-  echo "browser check: 8 passed, 0 failed; screenshots in out/report-screenshot.png and out/report-screenshot-phone.png"
+  echo "browser check: 9 passed, 0 failed; screenshots in out/report-screenshot.png and out/report-screenshot-phone.png"
 else
   echo "browser check: failed"
   exit 1
