@@ -901,6 +901,7 @@ func TestFamilyTable(t *testing.T) {
 	all.CutoffHz, all.PassbandHz, all.StopbandHz = Edges{1}, Edges{1}, Edges{1}
 	all.Response, all.Order, all.RippleDB, all.AttenuationDB, all.BesselNorm = "x", 1, 1, 1, "x"
 	all.FundamentalHz, all.Harmonics, all.BandwidthHz, all.Q, all.OddOnly = 1, 1, 1, 1, true
+	all.Tracking = true
 	all.Curve = "A"
 	all.Fraction, all.MidbandHz = 3, 1000
 	known := map[string]bool{}

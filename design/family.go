@@ -116,7 +116,7 @@ var families = []family{
 		},
 	},
 	{
-		name: Notch, keys: []string{"fundamental_hz", "harmonics", "bandwidth_hz", "q", "odd_harmonics_only"},
+		name: Notch, keys: []string{"fundamental_hz", "harmonics", "bandwidth_hz", "q", "odd_harmonics_only", "tracking"},
 		check: validateNotch, build: buildNotch,
 		cutoff: "none: notches at fundamental_hz and its harmonics",
 	},

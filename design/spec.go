@@ -78,6 +78,11 @@ type Stage struct {
 	BandwidthHz   float64 `json:"bandwidth_hz,omitempty"`
 	Q             float64 `json:"q,omitempty"`
 	OddOnly       bool    `json:"odd_harmonics_only,omitempty"`
+	// Tracking (notch stages) makes the notches follow the hum measured
+	// in each file as its frequency drifts: FundamentalHz is then the
+	// nominal value around which it is looked for, and the stage is
+	// designed at it only for reports.
+	Tracking bool `json:"tracking,omitempty"`
 
 	// Fractional-octave band stages (family "band"): the band of the
 	// 1/Fraction-octave series of IEC 61260-1 whose nominal or exact

@@ -36,6 +36,12 @@ type Cascade struct {
 	zi     [][2]float64 // steady state per section for a unit input to the cascade
 	steady bool
 	primed bool
+	// tv, when set, is a comb of tracking notches run after the sections
+	// (newTrackedCascade).
+	tv *trackComb
+	// tvPrime holds the constant input that primes tv at its next run
+	// (in the direction of that run), nil when none is due.
+	tvPrime []float64
 }
 
 // unit is one channel, or two adjacent channels filtered together.
@@ -55,6 +61,21 @@ func NewCascade(sos []design.Section, cfg Config) (*Cascade, error) {
 	if len(sos) == 0 {
 		return nil, errors.New("process: no filter sections")
 	}
+	return newCascade(sos, cfg)
+}
+
+// newTrackedCascade is NewCascade with a comb of tracking notches run
+// after the sections, of which there may be none.
+func newTrackedCascade(sos []design.Section, cfg Config, tv *trackComb) (*Cascade, error) {
+	c, err := newCascade(sos, cfg)
+	if err != nil {
+		return nil, err
+	}
+	c.tv = tv
+	return c, nil
+}
+
+func newCascade(sos []design.Section, cfg Config) (*Cascade, error) {
 	if cfg.Channels < 1 {
 		return nil, fmt.Errorf("process: invalid channel count %d", cfg.Channels)
 	}
@@ -187,6 +208,10 @@ func (c *Cascade) Reset() {
 		clear(u.z)
 	}
 	c.primed = false
+	if c.tv != nil {
+		c.tv.reset()
+		c.tvPrime = nil
+	}
 }
 
 // Prime sets the state of every filtered channel ch to the steady state
@@ -211,6 +236,18 @@ func (c *Cascade) Prime(frame []float64) {
 		}
 	}
 	c.primed = true
+	if c.tv != nil {
+		// The comb sees the sections' steady output, prod H_k(1) times
+		// the input (steadyState's scale).
+		g := 1.0
+		for _, s := range c.sec {
+			g *= sum3(s[0], s[1], s[2]) / sum3(1, s[4], s[5])
+		}
+		c.tvPrime = make([]float64, len(frame))
+		for i, v := range frame {
+			c.tvPrime[i] = g * v
+		}
+	}
 }
 
 // Process filters the interleaved frames of src into dst and returns
@@ -275,6 +312,13 @@ func (c *Cascade) run(x []float64, dir int) {
 		} else {
 			c.runSingle(x, first+u.c, n, step, u.z)
 		}
+	}
+	if c.tv != nil {
+		if c.tvPrime != nil {
+			c.tv.prime(c.tvPrime, dir > 0)
+			c.tvPrime = nil
+		}
+		c.tv.run(x, dir)
 	}
 }
 

@@ -68,6 +68,12 @@ type FileJob struct {
 	// Progress, if set, is called after each block with the frames done,
 	// from the goroutine that reads the input.
 	Progress func(done, total int64)
+	// NewTracker measures the hum for a tracking notch stage
+	// (design.Stage.Tracking), in a first pass over the input; a spec
+	// with such a stage fails without it. TrackPerChannel asks it for one
+	// track per channel instead of one shared by all.
+	NewTracker      NewHumTracker
+	TrackPerChannel bool
 }
 
 // StageSummary is what a manifest records of one designed stage.
@@ -100,7 +106,10 @@ type FileResult struct {
 	DitherSeed    uint64
 	PadFrames     int
 	EdgeTransient int
-	Warnings      []string
+	// TrackRangeHz is the lowest and highest hum fundamental a tracking
+	// notch followed.
+	TrackRangeHz []float64
+	Warnings     []string
 	// NonFinite counts, per channel, the NaN and infinite input samples
 	// replaced by zero (FileJob.AllowNonFinite); nil when there were none.
 	NonFinite []int64
@@ -229,6 +238,21 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	for _, st := range filt.Stages {
 		res.Design = append(res.Design, StageSummary{Family: st.Family, Response: st.Response, Curve: st.Spec.Curve, Order: st.Order, Sections: len(st.Sections), EdgesHz: st.EdgesHz})
 	}
+	block := job.BlockFrames
+	if block <= 0 {
+		block = blockFramesFor(inF.Channels)
+	}
+	tIdx, err := trackingStage(filt)
+	if err != nil {
+		return res, fmt.Errorf("%s: %w", job.Input, err)
+	}
+	var trk *tracked
+	if tIdx >= 0 {
+		if trk, err = trackPass(ctx, &job, filt, tIdx, block); err != nil {
+			return res, fmt.Errorf("%s: tracking the hum: %w (wavsieve survey shows what hum the file holds; without tracking a fixed notch runs)", job.Input, err)
+		}
+		res.TrackRangeHz = []float64{trk.lo, trk.hi}
+	}
 	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()
 	if err := outF.Writable(); err != nil {
@@ -265,10 +289,6 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	src := &peakSource{ctx: ctx, r: r, peak: make([]float64, inF.Channels), total: res.Frames, progress: job.Progress}
 	outPeak := make([]float64, inF.Channels)
 	cfg := Config{Channels: inF.Channels, Only: job.Only, SteadyStart: job.SteadyStart}
-	block := job.BlockFrames
-	if block <= 0 {
-		block = blockFramesFor(inF.Channels)
-	}
 	var out FrameSink = w
 	if job.Observe != nil {
 		if see := job.Observe(&job, inF, res.Frames, filt); see != nil {
@@ -290,7 +310,16 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	ra := newReadAhead(src, inF.Channels, block)
 	defer ra.close()
 	if job.Spec.ZeroPhase {
-		opt := zeroPhaseOptions(filt, res.Frames, inF.Channels, block)
+		var opt ZeroPhaseOptions
+		if trk != nil {
+			c, tv, err := trackedCascade(filt, trk, cfg)
+			if err != nil {
+				return res, fmt.Errorf("%s: %w", job.Input, err)
+			}
+			opt = trackedZeroPhaseOptions(filt, trk, c, tv, res.Frames, inF.Channels, block)
+		} else {
+			opt = zeroPhaseOptions(filt, res.Frames, inF.Channels, block)
+		}
 		opt.SpillMemoryBytes = job.SpillMemoryBytes
 		opt.ioBytes = job.spillIOBytes
 		opt.TempDir = job.TempDir
@@ -320,7 +349,18 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 		res.PadFrames, res.EdgeTransient = rep.PadFrames, rep.TransientFrames
 	} else {
-		err := causal(out, outPeak, ra, filt.Sections(), cfg)
+		var err error
+		if trk != nil {
+			var c *Cascade
+			var tv *trackComb
+			if c, tv, err = trackedCascade(filt, trk, cfg); err == nil {
+				if err = preroll(filt, trk, c, tv, inF.Channels); err == nil {
+					err = causalWith(out, outPeak, ra, c)
+				}
+			}
+		} else {
+			err = causal(out, outPeak, ra, filt.Sections(), cfg)
+		}
 		ra.close()
 		if err != nil {
 			return res, fmt.Errorf("%s: %w", job.Input, err)
@@ -399,6 +439,11 @@ func causal(dst FrameSink, peak []float64, src *readAhead, sos []design.Section,
 	if err != nil {
 		return err
 	}
+	return causalWith(dst, peak, src, c)
+}
+
+// causalWith is causal with a cascade ready to run.
+func causalWith(dst FrameSink, peak []float64, src *readAhead, c *Cascade) error {
 	wb := newWriteBehind(dst, peak, 0, src.free)
 	for {
 		p, rerr := src.next()

@@ -10,6 +10,7 @@ import (
 	"time"
 	"unsafe"
 
+	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/wavsieve/wavsieve/design"
@@ -48,7 +49,10 @@ type ZeroPhaseOptions struct {
 	// ToneHz, SampleRateHz and FitFrames are for ExtendTones. Each
 	// frequency must lie strictly between 0 and SampleRateHz/2, and the
 	// fit needs at least 1 + 2*len(ToneHz) frames.
-	ToneHz       []float64
+	ToneHz []float64
+	// ToneHzEnd, if set, are the frequencies fitted at the end of the
+	// signal instead of ToneHz (as many as ToneHz): a hum that drifted.
+	ToneHzEnd    []float64
 	SampleRateHz float64
 	FitFrames    int
 
@@ -63,6 +67,10 @@ type ZeroPhaseOptions struct {
 	BlockFrames int
 
 	ioBytes int // each spill file buffer; 0 means spillIOBytes
+
+	// cascade, if set, is the filter to run instead of one built from
+	// the sections (a cascade with tracking notches).
+	cascade *Cascade
 }
 
 // EdgeReport describes the edges of a zero-phase run.
@@ -163,18 +171,22 @@ func ZeroPhaseSlice(dst, src []float64, sos []design.Section, cfg Config, opt Ze
 }
 
 type zeroPhase struct {
-	c     *Cascade
-	ch    int
-	block int
-	opt   ZeroPhaseOptions
-	omega []float64 // tone frequencies, radians per frame
+	c        *Cascade
+	ch       int
+	block    int
+	opt      ZeroPhaseOptions
+	omega    []float64 // tone frequencies, radians per frame
+	omegaEnd []float64 // at the end of the signal
 }
 
 func newZeroPhase(sos []design.Section, cfg Config, opt ZeroPhaseOptions) (*zeroPhase, error) {
 	cfg.SteadyStart = false
-	c, err := NewCascade(sos, cfg)
-	if err != nil {
-		return nil, err
+	c := opt.cascade
+	if c == nil {
+		var err error
+		if c, err = NewCascade(sos, cfg); err != nil {
+			return nil, err
+		}
 	}
 	z := &zeroPhase{c: c, ch: cfg.Channels, block: opt.BlockFrames, opt: opt}
 	if z.block == 0 {
@@ -203,6 +215,19 @@ func newZeroPhase(sos []design.Section, cfg Config, opt ZeroPhaseOptions) (*zero
 				return nil, fmt.Errorf("process: invalid tone frequency %v Hz: must lie between 0 and %v Hz (Nyquist)", f, opt.SampleRateHz/2)
 			}
 			z.omega = append(z.omega, 2*math.Pi*f/opt.SampleRateHz)
+		}
+		z.omegaEnd = z.omega
+		if opt.ToneHzEnd != nil {
+			if len(opt.ToneHzEnd) != len(opt.ToneHz) {
+				return nil, fmt.Errorf("process: %d tone frequencies at the end for %d at the start", len(opt.ToneHzEnd), len(opt.ToneHz))
+			}
+			z.omegaEnd = nil
+			for _, f := range opt.ToneHzEnd {
+				if !(f > 0 && f < opt.SampleRateHz/2) {
+					return nil, fmt.Errorf("process: invalid tone frequency %v Hz: must lie between 0 and %v Hz (Nyquist)", f, opt.SampleRateHz/2)
+				}
+				z.omegaEnd = append(z.omegaEnd, 2*math.Pi*f/opt.SampleRateHz)
+			}
 		}
 		if opt.FitFrames < 1+2*len(opt.ToneHz) {
 			return nil, fmt.Errorf("process: invalid fit length %d frames: %d tones need at least %d", opt.FitFrames, len(opt.ToneHz), 1+2*len(opt.ToneHz))
@@ -344,7 +369,7 @@ func (z *zeroPhase) extendLeft(pad, head []float64, rep *EdgeReport) error {
 	}
 	fit := min(z.opt.FitFrames, len(head)/ch)
 	rep.FitFrames = fit
-	return z.extrapolate(pad, head[:fit*ch], -n)
+	return z.extrapolate(pad, head[:fit*ch], -n, z.omega)
 }
 
 // extendRight fills pad (the frames after the signal) from the last
@@ -364,49 +389,63 @@ func (z *zeroPhase) extendRight(pad, tail []float64, rep *EdgeReport) error {
 	}
 	fit := min(z.opt.FitFrames, m)
 	rep.FitFrames = min(rep.FitFrames, fit)
-	return z.extrapolate(pad, tail[(m-fit)*ch:], fit)
+	return z.extrapolate(pad, tail[(m-fit)*ch:], fit, z.omegaEnd)
 }
 
 // extrapolate fits x[t] = c + sum_k (a_k cos(w_k t) + b_k sin(w_k t)),
 // t = 0..len(x)/ch-1, per channel by least squares (QR), and writes the
 // model at t = from, from+1, ... into pad.
-func (z *zeroPhase) extrapolate(pad, x []float64, from int) error {
+func (z *zeroPhase) extrapolate(pad, x []float64, from int, omega []float64) error {
 	ch := z.ch
-	m := len(x) / ch
-	p := 1 + 2*len(z.omega)
-	if m < p {
-		return fmt.Errorf("process: tone extension: the signal has %d frames, the fit of %d tones needs %d", m, len(z.omega), p)
+	cs, err := fitTones(x, ch, omega)
+	if err != nil {
+		return err
 	}
-	row := func(dst []float64, t float64) {
-		dst[0] = 1
-		for k, w := range z.omega {
-			s, c := math.Sincos(w * t)
-			dst[1+2*k], dst[2+2*k] = c, s
+	r := make([]float64, 1+2*len(omega))
+	for j := 0; j < len(pad)/ch; j++ {
+		toneRow(r, float64(from+j), omega)
+		for k := 0; k < ch; k++ {
+			v := 0.0
+			for i, ri := range r {
+				v += ri * cs.Data[i*cs.Stride+k]
+			}
+			pad[j*ch+k] = v
 		}
+	}
+	return nil
+}
+
+// toneRow writes the row of the tone model at t: 1, then cos and sin of
+// each w_k t.
+func toneRow(dst []float64, t float64, omega []float64) {
+	dst[0] = 1
+	for k, w := range omega {
+		s, c := math.Sincos(w * t)
+		dst[1+2*k], dst[2+2*k] = c, s
+	}
+}
+
+// fitTones fits the tone model of extrapolate to the interleaved frames
+// of x, per channel, and returns its coefficients (a row per model
+// column, a column per channel).
+func fitTones(x []float64, ch int, omega []float64) (blas64.General, error) {
+	m := len(x) / ch
+	p := 1 + 2*len(omega)
+	if m < p {
+		return blas64.General{}, fmt.Errorf("process: tone extension: the signal has %d frames, the fit of %d tones needs %d", m, len(omega), p)
 	}
 	a := mat.NewDense(m, p, nil)
 	for t := 0; t < m; t++ {
-		row(a.RawRowView(t), float64(t))
+		toneRow(a.RawRowView(t), float64(t), omega)
 	}
 	b := mat.NewDense(m, ch, append([]float64(nil), x...))
 	var qr mat.QR
 	qr.Factorize(a)
 	var coef mat.Dense
 	if err := qr.SolveTo(&coef, false, b); err != nil {
-		return fmt.Errorf("process: tone extension: the fit is ill-conditioned (tones too close for %d frames?): %w", m, err)
+		return blas64.General{}, fmt.Errorf("process: tone extension: the fit is ill-conditioned (tones too close for %d frames?): %w", m, err)
 	}
-	r := make([]float64, p)
-	for j := 0; j < len(pad)/ch; j++ {
-		row(r, float64(from+j))
-		for k := 0; k < ch; k++ {
-			v := 0.0
-			for i, ri := range r {
-				v += ri * coef.At(i, k)
-			}
-			pad[j*ch+k] = v
-		}
-	}
-	return nil
+	return coef.RawMatrix(), nil
 }
 
 // readFull reads whole frames into dst until it is full or the source

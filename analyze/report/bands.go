@@ -60,7 +60,25 @@ func FromBands(doc []byte) (Report, error) {
 	if err := json.Unmarshal(doc, &d); err != nil {
 		return Report{}, fmt.Errorf("report: the bands document is not valid JSON: %w", err)
 	}
-	r := Report{Title: "wavsieve band levels", Subtitle: fmt.Sprintf("%d files", len(d.Files)), Notes: []string{BandsCaution}}
+	// The count goes in the list of runs, as an apply record's and a
+	// survey's do: a bare "6 files" under the title of a merged report
+	// reads as the count of the whole report.
+	fracs := map[int]bool{}
+	for _, f := range d.Files {
+		if f.Fraction != nil {
+			fracs[*f.Fraction] = true
+		}
+	}
+	what := "bands of several fractions"
+	if len(fracs) == 1 {
+		for b := range fracs {
+			what = map[int]string{1: "octave bands", 3: "third-octave bands"}[b]
+			if what == "" {
+				what = fmt.Sprintf("1/%d-octave bands", b)
+			}
+		}
+	}
+	r := Report{Title: "wavsieve band levels", Runs: []string{fmt.Sprintf("band levels of %s, %s", plural(len(d.Files), "file"), what)}, Notes: []string{BandsCaution}}
 	t := Table{Caption: "Files measured (click a heading to sort)",
 		Columns: []string{"file", "rate (Hz)", "bands", "duration (s)", "channel", "overall (dB)", "reference", "weighting", "error"},
 		Numeric: []bool{false, true, false, true, true, true, false, false, false}}

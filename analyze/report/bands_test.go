@@ -42,4 +42,9 @@ func TestFromBands(t *testing.T) {
 	if !strings.Contains(b.String(), "not the reading of a class 1 instrument") {
 		t.Errorf("the report does not carry the caution")
 	}
+	// The count is a run of the report, like "survey of 4 files", not a
+	// bare subtitle that reads as the whole report's count.
+	if r.Subtitle != "" || len(r.Runs) != 1 || r.Runs[0] != "band levels of 2 files, octave bands" {
+		t.Errorf("subtitle %q, runs %q; want the one run \"band levels of 2 files, octave bands\"", r.Subtitle, r.Runs)
+	}
 }

@@ -158,6 +158,14 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 				fileSpec = sp
 			}
 		}
+		if len(f.TrackRangeHz) == 2 {
+			sec.Facts = append(sec.Facts, [2]string{"hum track", fmt.Sprintf("the notches followed %.3f-%.3f Hz", f.TrackRangeHz[0], f.TrackRangeHz[1])})
+			if svg, note, err := humTrackPlot(in, out, fileSpec, opt); err != nil {
+				sec.Facts = append(sec.Facts, [2]string{"hum track plot", "not drawn: " + err.Error()})
+			} else {
+				sec.Plots = append(sec.Plots, Plot{Caption: note, SVG: svg})
+			}
+		}
 		if filt, err := design.Design(fileSpec, float64(f.SampleRate)); err == nil {
 			var b bytes.Buffer
 			if err := plots.Design(filt, &b, "svg", plots.DesignOptions{}); err == nil {

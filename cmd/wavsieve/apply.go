@@ -89,24 +89,25 @@ Flags:
 `
 
 type applyOpts struct {
-	sf         specFlags
-	output     string
-	recursive  bool
-	replace    bool
-	workers    int
-	shard      string
-	dryRun     bool
-	asJSON     bool
-	manifest   string
-	sampleFmt  string
-	noDither   bool
-	seed       uint64
-	channels   string
-	steady     bool
-	tempDir    string
-	nonFinite  bool
-	allowShort bool
-	noProgress bool
+	sf              specFlags
+	output          string
+	recursive       bool
+	replace         bool
+	workers         int
+	shard           string
+	dryRun          bool
+	asJSON          bool
+	manifest        string
+	sampleFmt       string
+	noDither        bool
+	seed            uint64
+	channels        string
+	steady          bool
+	tempDir         string
+	nonFinite       bool
+	allowShort      bool
+	trackPerChannel bool
+	noProgress      bool
 }
 
 func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
@@ -126,6 +127,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.BoolVar(&o.noDither, "no-dither", false, "no TPDF dither when writing integer samples")
 	fs.Uint64Var(&o.seed, "dither-seed", 0, "seed of the dither (default: from the input's file name and size, so identical runs give identical files; recorded in the manifest)")
 	fs.StringVar(&o.channels, "channels", "", "filter only these channels, counted from 1 (`list` such as 1,3); others pass through")
+	fs.BoolVar(&o.trackPerChannel, "track-per-channel", false, "with --track: follow the hum in each channel on its own (default: one track from all channels)")
 	fs.BoolVar(&o.steady, "steady-start", false, "causal runs start settled on the first sample, so a DC offset gives no thump")
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the zero-phase spill (default: beside each output)")
 	fs.BoolVar(&o.nonFinite, "allow-nonfinite", false, "replace NaN and infinite float samples by zero (counted per channel in the manifest) instead of refusing the file")
@@ -172,6 +174,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "apply", usagef("--workers must be at least 1"), "")
 	}
 	tmpl := process.FileJob{Spec: spec, NoDither: o.noDither, DitherSeed: o.seed, SteadyStart: o.steady, TempDir: o.tempDir, AllowNonFinite: o.nonFinite, AllowShort: o.allowShort}
+	tmpl.NewTracker, tmpl.TrackPerChannel = newHumTracker, o.trackPerChannel
 	if o.sampleFmt != "" {
 		enc, bits, err := parseSampleFormat(o.sampleFmt)
 		if err != nil {
@@ -264,6 +267,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 		return ""
 	}
+	popt.Context = ctx
 	items, err := process.PlanInputs(found, popt)
 	if err != nil {
 		undo()

@@ -361,6 +361,9 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 		if err != nil {
 			if errors.Is(err, analyze.ErrNoBands) {
 				bf.Error = fmt.Sprintf("%s: no 1/%d-octave band lies between --from and --to below the Nyquist frequency of this %d Hz file; widen the range", path, opt.fraction, f.SampleRate)
+			} else if errors.Is(err, design.ErrAboveNyquist) && opt.toHz > 0 {
+				// Name the flag that set the upper end of the range.
+				bf.Error = fmt.Sprintf("%s: %s (--to %g)", path, strings.TrimPrefix(err.Error(), "analyze: "), opt.toHz)
 			} else {
 				bf.Error = fmt.Sprintf("%s: %v", path, strings.TrimPrefix(strings.TrimPrefix(err.Error(), "analyze: "), "design: "))
 			}

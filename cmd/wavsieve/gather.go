@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -68,7 +69,8 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	defer stop()
 	g, err := runrecord.Gather(ctx, dir)
 	if err != nil {
-		return report(stderr, "gather", err, "")
+		// The library's "runrecord: " prefix means nothing to a user.
+		return report(stderr, "gather", errors.New(strings.TrimPrefix(err.Error(), "runrecord: ")), "")
 	}
 	base := runrecord.Base(dir, 0, 0)
 	if *asJSON {

@@ -98,8 +98,12 @@ var specFamilies = []specFamily{
   Nyquist frequency), since hum power above that is rarely above the floor
   and each notch costs signal. odd_harmonics_only keeps harmonics 1, 3, 5...
   A comb that takes out more than 5% of the power of white noise gets a
-  warning: it also removes much of the signal.
+  warning: it also removes much of the signal. With "tracking": true the
+  notches follow the hum as its frequency drifts (measured in each file
+  first), so they can stay narrow: 0.5 Hz takes 40 dB off every harmonic
+  of a supply that wanders.
     {"family": "notch", "fundamental_hz": 50, "harmonics": 7, "bandwidth_hz": 2}
+    {"family": "notch", "fundamental_hz": 50, "harmonics": 9, "bandwidth_hz": 0.5, "tracking": true}
     {"family": "notch", "fundamental_hz": 60, "harmonics": 7, "odd_harmonics_only": true, "q": 50}`},
 	{"weighting", `weighting: a curve a standard defines, at the file's rate: curve "A",
   "C" or "Z" (IEC 61672-1) or "Wb", "Wc", "Wd", "We", "Wf", "Wh", "Wj",
@@ -174,6 +178,9 @@ Stage keys (units in brackets):
   q               [ratio] notch only: constant quality factor instead of
                   bandwidth_hz (width = centre / q), e.g. 30
   odd_harmonics_only  true or false, notch only: notch harmonics 1, 3, 5...
+  tracking        true or false, notch only: the notches follow the hum
+                  measured in each file (fundamental_hz is then where it is
+                  looked for, within 2 Hz); flag --track
   curve           weighting only: A, C, Z, Wb, Wc, Wd, We, Wf, Wh, Wj, Wk or Wm
   fraction        [count] band only: b of a 1/b-octave band, 1, 2, 3, 6, 12 or 24
   midband_hz      [Hz] band only: the band's nominal or exact mid-band

@@ -25,8 +25,9 @@ The report is one HTML file with every plot embedded as SVG; it fetches
 nothing and opens offline in any browser. From an apply manifest it shows,
 per file, the before/after spectra, the filter as designed at the file's
 rate with its pole/zero diagram, the verification table when the run was
-verified (apply --verify), and the whole manifest as a table that sorts by
-any column. From a survey document (survey --json) it shows each file's
+verified (apply --verify), for a tracking notch (apply --track) the hum's
+track over time with its level before and after, and the whole manifest
+as a table that sorts by any column. From a survey document (survey --json) it shows each file's
 spectrum, its hum and its suggested spec. From a bands document (bands
 --json) it shows each file's band levels as a bar chart and a table, with
 the caution that they are no class 1 instrument reading unless the whole

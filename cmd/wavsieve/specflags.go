@@ -34,6 +34,7 @@ type specFlags struct {
 	oddOnly     bool
 	zeroPhase   bool
 	weighting   string
+	track       bool
 }
 
 func (s *specFlags) register(fs *pflag.FlagSet) {
@@ -54,6 +55,7 @@ func (s *specFlags) register(fs *pflag.FlagSet) {
 	fs.BoolVar(&s.oddOnly, "odd-only", false, "notch: odd harmonics only")
 	fs.StringVar(&s.weighting, "weighting", "", "add a standard weighting `curve` after the other stages: "+strings.Join(design.WeightingCurves(), ", ")+" (IEC 61672-1, ISO 8041-1); weighted levels from a file are no sound level meter or vibration meter reading")
 	fs.BoolVar(&s.zeroPhase, "zero-phase", false, "run forward and backward: the squared response meets the spec")
+	fs.BoolVar(&s.track, "track", false, "notch: the notches follow the hum measured in each file as it drifts (tracking: true)")
 }
 
 // spec builds the spec from the file or from the flags, then adds the
@@ -96,6 +98,18 @@ func (s *specFlags) baseSpec(fs *pflag.FlagSet) (design.Spec, error) {
 		if s.zeroPhase {
 			sp.ZeroPhase = true
 		}
+		if s.track {
+			n := 0
+			for i := range sp.Stages {
+				if sp.Stages[i].Family == design.Notch {
+					sp.Stages[i].Tracking = true
+					n++
+				}
+			}
+			if n == 0 {
+				return design.Spec{}, usagef("--track: %s has no notch stage to track the hum with", s.file)
+			}
+		}
 		return sp, nil
 	}
 	if s.family == "" {
@@ -120,6 +134,7 @@ func (s *specFlags) baseSpec(fs *pflag.FlagSet) (design.Spec, error) {
 		Family: s.family, Response: s.response, Order: s.order,
 		RippleDB: s.ripple, AttenuationDB: s.attenuation, BesselNorm: s.besselNorm,
 		FundamentalHz: s.fundamental, Harmonics: s.harmonics, BandwidthHz: s.bandwidth, Q: s.q, OddOnly: s.oddOnly,
+		Tracking: s.track,
 	}
 	var err error
 	if st.CutoffHz, err = parseEdges("--cutoff", s.cutoff); err != nil {

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
+	"math"
 	"strconv"
 	"strings"
 
@@ -32,7 +33,11 @@ seconds from all its harmonics at once, to a few mHz on a clean hum. The
 report gives its mean over the blocks, the drift (largest minus smallest
 block), the track, and each harmonic that stands at least --threshold dB
 above its local noise floor. A file has no hum when neither the
-fundamental nor two or more harmonics reach the threshold.
+fundamental nor two or more harmonics reach the threshold. Where there
+is hum, the fine track a tracking notch (apply --track) would follow is
+measured too, every 20 ms from the phase of all strong harmonics: the
+report gives its range and its fastest change (over 0.1 s), --json
+carries every point, and --track-csv writes it as time_s,fundamental_hz.
 
 Rumble: the power below 20 Hz against the median floor of 200-2000 Hz.
 Where it stands --threshold dB or more over that floor, a high-pass is
@@ -77,12 +82,27 @@ type surveyFile struct {
 	DurationS     float64                `json:"duration_s"`
 	Stats         []analyze.ChannelStats `json:"channel_stats,omitempty"`
 	Hum           *analyze.Hum           `json:"hum"`
+	HumTrack      *humTrackDoc           `json:"hum_track,omitempty"`
 	Rumble        []analyze.Rumble       `json:"rumble,omitempty"`
 	SuggestedSpec *design.Spec           `json:"suggested_spec"`
 	SpecError     string                 `json:"suggested_spec_error,omitempty"`
 	Notes         []string               `json:"notes,omitempty"`
 	Warnings      []string               `json:"warnings,omitempty"`
 	Error         string                 `json:"error,omitempty"`
+}
+
+// humTrackDoc is the fine track of the hum's fundamental (the one a
+// tracking notch follows): its range, its fastest change, and the
+// fundamental every hop_s seconds from the start.
+type humTrackDoc struct {
+	HopS        float64   `json:"hop_s"`
+	LowestHz    float64   `json:"lowest_hz"`
+	HighestHz   float64   `json:"highest_hz"`
+	MaxRateHzS  float64   `json:"max_rate_hz_per_s"`
+	Harmonics   []int     `json:"harmonics_used"`
+	Bridged     int       `json:"bridged_points"`
+	LongestGapS float64   `json:"longest_gap_s"`
+	Hz          []float64 `json:"fundamental_hz"`
 }
 
 type surveyDoc struct {
@@ -96,6 +116,7 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.SetOutput(io.Discard)
 	asJSON := fs.Bool("json", false, "print the survey as one JSON document on stdout")
 	writeSpec := fs.String("write-spec", "", "write the suggested spec of the one input to this `file`")
+	trackCSV := fs.String("track-csv", "", "write the hum's fine track of the one input to this CSV `file` (time_s,fundamental_hz)")
 	mains := fs.String("mains", "auto", "mains frequency to look for: 50, 60 or auto")
 	block := fs.Float64("block", analyze.DefaultSurveyBlockSeconds, "length in `seconds` of the blocks the fundamental is tracked in")
 	threshold := fs.Float64("threshold", analyze.DefaultSurveyThresholdDB, "`dB` above the local floor for a harmonic or rumble to count")
@@ -146,6 +167,9 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if *writeSpec != "" && len(doc.Files) != 1 {
 		return report(stderr, "survey", usagef("--write-spec takes exactly one input file, got %d", len(doc.Files)), "")
 	}
+	if *trackCSV != "" && len(doc.Files) != 1 {
+		return report(stderr, "survey", usagef("--track-csv takes exactly one input file, got %d", len(doc.Files)), "")
+	}
 
 	failed := 0
 	for _, f := range doc.Files {
@@ -160,6 +184,14 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			failed++
 		} else {
 			fmt.Fprintf(stderr, "wavsieve survey: suggested spec written to %s\n", *writeSpec)
+		}
+	}
+	if *trackCSV != "" {
+		if err := saveTrackCSV(*trackCSV, doc.Files[0]); err != nil {
+			fmt.Fprintf(stderr, "wavsieve survey: %v\n", err)
+			failed++
+		} else {
+			fmt.Fprintf(stderr, "wavsieve survey: hum track written to %s\n", *trackCSV)
 		}
 	}
 	if *asJSON {
@@ -225,10 +257,18 @@ func surveyOne(path string, opt analyze.SurveyOptions) surveyFile {
 		sf.Error = fmt.Sprintf("%s: %v", path, err)
 		return sf
 	}
+	// The fine track, measured in the same read (none for a file too
+	// short or at too low a rate to track). It is looked for around the
+	// nominal mains (or the one --mains names) within --search, and the
+	// block track below must agree with it.
+	tk, _ := analyze.NewTracker(analyze.TrackOptions{SampleRate: float64(f.SampleRate), Channels: f.Channels, MainsHz: opt.MainsHz, SearchHz: math.Min(opt.SearchHz, 4.9)})
 	buf := make([]float64, 8192*f.Channels)
 	for {
 		n, err := r.ReadFrames(buf)
 		s.Write(buf[:n*f.Channels])
+		if tk != nil {
+			tk.Write(buf[:n*f.Channels])
+		}
 		if err == io.EOF {
 			break
 		}
@@ -249,7 +289,48 @@ func surveyOne(path string, opt analyze.SurveyOptions) surveyFile {
 	sf.Frames, sf.DurationS = sv.Frames, sv.DurationS
 	sf.Stats, sf.Hum, sf.Rumble = sv.Stats, sv.Hum, sv.Rumble
 	sf.SuggestedSpec, sf.SpecError, sf.Notes = sv.Spec, sv.SpecError, sv.Notes
+	if tk != nil && sv.Hum != nil {
+		tracks, err := tk.Result()
+		switch {
+		case err != nil:
+			sf.Notes = append(sf.Notes, "no fine hum track: "+strings.TrimPrefix(err.Error(), "analyze: "))
+		default:
+			t := tracks[0]
+			lo, hi := t.Range()
+			// A steady comb of machine tones within the search range can
+			// hold the tracker; the block track, fitted with outliers
+			// rejected, is the check.
+			if d := sv.Hum.DriftHz/2 + fineTrackAgreeHz; math.Abs((lo+hi)/2-sv.Hum.FundamentalHz) > d+(hi-lo)/2 {
+				sf.Notes = append(sf.Notes, fmt.Sprintf("no fine hum track: the tracker followed %.3f-%.3f Hz, away from the hum the blocks measured (%.3f Hz); a steady tone comb beside the hum may have held it: narrow --search", lo, hi, sv.Hum.FundamentalHz))
+				break
+			}
+			sf.HumTrack = &humTrackDoc{HopS: t.HopS, LowestHz: lo, HighestHz: hi, MaxRateHzS: t.MaxRate(), Harmonics: t.Harmonics, Bridged: t.Bridged, LongestGapS: t.LongestGapS, Hz: t.Hz}
+		}
+	}
 	return sf
+}
+
+// fineTrackAgreeHz is how far the fine track's middle may stray from the
+// block track's mean beyond their half-ranges.
+const fineTrackAgreeHz = 0.1
+
+// saveTrackCSV writes f's fine hum track as CSV, atomically.
+func saveTrackCSV(name string, f surveyFile) error {
+	if f.HumTrack == nil {
+		return fmt.Errorf("%s: no track written for %s: no hum could be tracked in it", name, f.Path)
+	}
+	if same, err := wavio.SameFile(name, f.Path); err == nil && same {
+		return fmt.Errorf("%s: this is the input file; choose another name for the track", name)
+	}
+	var b strings.Builder
+	b.WriteString("time_s,fundamental_hz\n")
+	for i, hz := range f.HumTrack.Hz {
+		fmt.Fprintf(&b, "%.4f,%.5f\n", float64(i)*f.HumTrack.HopS, hz)
+	}
+	if err := writeFileAtomic(name, []byte(b.String())); err != nil {
+		return fmt.Errorf("writing the track: %w", err)
+	}
+	return nil
 }
 
 // saveSpec writes f's suggested spec to name, atomically, refusing to
@@ -306,6 +387,13 @@ func printSurvey(w io.Writer, f surveyFile) {
 		if h.OddOnly {
 			fmt.Fprintln(w, "    odd harmonics only: electrical pickup rather than a transformer")
 		}
+		if t := f.HumTrack; t != nil {
+			fmt.Fprintf(w, "    fine track: %.3f to %.3f Hz, fastest change %.2f Hz/s, every %.0f ms from harmonics %s", t.LowestHz, t.HighestHz, t.MaxRateHzS, 1000*t.HopS, intList(t.Harmonics))
+			if t.Bridged > 0 {
+				fmt.Fprintf(w, "; %d points bridged where the hum was masked (longest %.2f s)", t.Bridged, t.LongestGapS)
+			}
+			fmt.Fprintln(w)
+		}
 	} else if f.Rumble != nil {
 		fmt.Fprintln(w, "  mains hum: none above the floor")
 	}
@@ -334,6 +422,14 @@ func printSurvey(w io.Writer, f surveyFile) {
 	default:
 		fmt.Fprintln(w, "  suggested spec: none (nothing to take out)")
 	}
+}
+
+func intList(v []int) string {
+	var s []string
+	for _, x := range v {
+		s = append(s, strconv.Itoa(x))
+	}
+	return strings.Join(s, ",")
 }
 
 func dbText(v *float64) string {

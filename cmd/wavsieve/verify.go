@@ -425,7 +425,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 	}
 	fmt.Fprintf(w, "\nVerdict: %s (%d passed, %d failed, %d unmeasurable", r.Verdict, r.Passed, r.Failed, r.Unmeasurable)
 	if open, what := openChecks(r.Checks); open > 0 && r.Verdict != verify.Fail {
-		fmt.Fprintf(w, "; %d %s checks not shown to pass", open, what)
+		fmt.Fprintf(w, "; %d %s %s not shown to pass", open, what, map[bool]string{true: "check", false: "checks"}[open == 1])
 	}
 	fmt.Fprintln(w, ")")
 	if r.Verdict == verify.Inconclusive && r.Method == "recording" {

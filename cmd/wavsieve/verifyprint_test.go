@@ -1,6 +1,7 @@
 package main
 
 import (
+	"strings"
 	"testing"
 
 	"github.com/wavsieve/wavsieve/analyze/verify"
@@ -25,6 +26,34 @@ func TestOpenChecksWording(t *testing.T) {
 			open, what := openChecks(c.checks)
 			if open != c.open || what != c.what {
 				t.Errorf("openChecks = %d, %q; want %d, %q", open, what, c.open, c.what)
+			}
+		})
+	}
+}
+
+// TestVerdictLineCount: the verdict line says "1 ... check", "2 ...
+// checks".
+func TestVerdictLineCount(t *testing.T) {
+	cases := []struct {
+		name string
+		open int
+		want string
+	}{
+		{"one", 1, "; 1 edge, cutoff or notch check not shown to pass)"},
+		{"two", 2, "; 2 edge, cutoff or notch checks not shown to pass)"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := &verify.Result{Method: "recording", SampleRate: 8000, Channels: []int{1}, Window: "blackman-harris", ConfidenceLevel: 0.99}
+			r.Checks = append(r.Checks, verify.Check{Channel: 1, Stage: 1, Kind: "passband", Verdict: verify.Pass})
+			for i := 0; i < c.open; i++ {
+				r.Checks = append(r.Checks, verify.Check{Channel: 1, Stage: 1, Kind: "cutoff", Verdict: verify.Unmeasurable})
+			}
+			r.Finish()
+			var b strings.Builder
+			printVerify(&b, r)
+			if !strings.Contains(b.String(), c.want) {
+				t.Errorf("verdict line lacks %q:\n%s", c.want, b.String())
 			}
 		})
 	}

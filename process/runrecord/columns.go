@@ -47,6 +47,7 @@ var columns = []column{
 	optional(integer("dither_seed", func(f *File) *uint64 { return &f.DitherSeed })),
 	optional(integer("zero_phase_pad_frames", func(f *File) *int { return &f.PadFrames })),
 	optional(integer("edge_transient_frames", func(f *File) *int { return &f.EdgeTransient })),
+	optional(list("track_range_hz", func(f *File) *[]float64 { return &f.TrackRangeHz })),
 	optional(asJSON("warnings", func(f *File) *[]string { return &f.Warnings })),
 	optional(list("nonfinite_samples", func(f *File) *[]int64 { return &f.NonFinite })),
 	float("seconds", func(f *File) *float64 { return &f.Seconds }),

@@ -1,0 +1,65 @@
+package plots
+
+import (
+	"fmt"
+	"io"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// HumTrackPlot is the input of HumTrack: the fundamental a tracking notch
+// followed, and the hum's level before and after.
+type HumTrackPlot struct {
+	Title string
+	// TimesS and Hz are the track's points.
+	TimesS, Hz []float64
+	// BlockTimesS are the centres of the blocks in which the hum's level
+	// was measured; InDB and OutDB the level at the track's harmonics in
+	// the input and the output, dBFS.
+	BlockTimesS, InDB, OutDB []float64
+	Note                     string // printed under the title
+	// Width and Height of the image; zero: 9 x 6 inches.
+	Width, Height vg.Length
+}
+
+// HumTrack draws the track over time above the hum's level in the input
+// and the output, and writes the image to w in format "svg" or "png".
+func HumTrack(w io.Writer, format string, s HumTrackPlot) error {
+	format, err := checkFormat(format)
+	if err != nil {
+		return err
+	}
+	width, height, err := checkSize(s.Width, s.Height, 9*vg.Inch, 6*vg.Inch)
+	if err != nil {
+		return err
+	}
+	if len(s.TimesS) == 0 || len(s.TimesS) != len(s.Hz) {
+		return fmt.Errorf("plots: a hum track of %d times and %d frequencies", len(s.TimesS), len(s.Hz))
+	}
+	if len(s.BlockTimesS) != len(s.InDB) || len(s.BlockTimesS) != len(s.OutDB) {
+		return fmt.Errorf("plots: hum levels of %d blocks, %d inputs, %d outputs", len(s.BlockTimesS), len(s.InDB), len(s.OutDB))
+	}
+	top := newPanel("fundamental of the hum", "time (s)", "Hz")
+	addCurve(top, s.TimesS, s.Hz, draw.LineStyle{Color: curveColor, Width: vg.Points(1.2)})
+	low := newPanel("hum at the tracked harmonics", "time (s)", "level (dBFS)")
+	if l := addCurve(low, s.BlockTimesS, s.InDB, draw.LineStyle{Color: secondColor, Width: vg.Points(1.2)}); l != nil {
+		low.Legend.Add("input", l)
+	}
+	if l := addCurve(low, s.BlockTimesS, s.OutDB, draw.LineStyle{Color: curveColor, Width: vg.Points(1.2)}); l != nil {
+		low.Legend.Add("output", l)
+	}
+	head := []string{s.Title}
+	if s.Note != "" {
+		head = append(head, s.Note)
+	}
+	panels := [][]*plot.Plot{{top}, {low}}
+	return render(w, format, width, height, func(c draw.Canvas) {
+		c = drawHeading(c, head)
+		tiles := draw.Tiles{Rows: 2, Cols: 1, PadY: vg.Points(14), PadLeft: vg.Points(8), PadRight: vg.Points(12), PadBottom: vg.Points(6)}
+		cs := plot.Align(panels, tiles, c)
+		top.Draw(cs[0][0])
+		low.Draw(cs[1][0])
+	})
+}

@@ -1,0 +1,252 @@
+package process
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+
+	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process/wavio"
+)
+
+// HumTracker measures the hum's fundamental over time for a tracking
+// notch stage: it is given every frame of the input, in order, and then
+// asked for the track, one shared by all channels or one per channel.
+type HumTracker interface {
+	Write(frames []float64)
+	Tracks() ([]FrequencyTrack, error)
+}
+
+// NewHumTracker makes the HumTracker of one file for a tracking notch
+// stage. process does not measure hum itself; the caller supplies the
+// tracker (analyze.Tracker in the command).
+type NewHumTracker func(rate float64, channels int, stage design.Stage, perChannel bool) (HumTracker, error)
+
+// ErrNoTracker is returned (wrapped) when a spec has a tracking notch
+// stage and the job no NewTracker.
+var ErrNoTracker = errors.New("process: a tracking notch needs a hum tracker")
+
+// trackFitSeconds is the length fitted at each end of the signal to
+// extend the hum before it (zero phase and the causal pre-roll): a
+// quarter second, short enough that a drifting hum keeps one frequency
+// within it (0.25 Hz/s moves the 9th harmonic 0.56 Hz in it), long
+// enough to tell harmonics 50 Hz apart (resolution about 1/length:
+// common practice).
+const trackFitSeconds = 0.25
+
+// prerollExactEvery is how often the causal pre-roll's tone model is
+// computed exactly rather than turned.
+const prerollExactEvery = 1024
+
+// tracked is the plan of a run with a tracking notch stage.
+type tracked struct {
+	stage  int // index in the filter's stages
+	tracks []FrequencyTrack
+	lo, hi float64 // range of the fundamental over all tracks
+	head   []float64
+}
+
+// trackingStage returns the index of the filter's tracking notch stage,
+// -1 for none; more than one is an error.
+func trackingStage(f *design.Filter) (int, error) {
+	idx := -1
+	for i, st := range f.Stages {
+		if st.Spec.Tracking {
+			if idx >= 0 {
+				return -1, fmt.Errorf("stages %d and %d both track the hum: use one tracking notch stage", idx+1, i+1)
+			}
+			idx = i
+		}
+	}
+	return idx, nil
+}
+
+// rangeOf is implemented by tracks that know their range.
+type rangeOf interface{ Range() (lo, hi float64) }
+
+// trackPass reads the whole input once and measures the hum's track.
+// It keeps the first frames for the causal pre-roll.
+func trackPass(ctx context.Context, job *FileJob, f *design.Filter, stage int, block int) (*tracked, error) {
+	if job.NewTracker == nil {
+		return nil, ErrNoTracker
+	}
+	r, err := wavio.Open(job.Input, &wavio.ReaderOptions{AllowNonFinite: job.AllowNonFinite})
+	if err != nil {
+		return nil, err
+	}
+	defer r.Close()
+	inF := r.Format()
+	tk, err := job.NewTracker(float64(inF.SampleRate), inF.Channels, f.Stages[stage].Spec, job.TrackPerChannel)
+	if err != nil {
+		return nil, err
+	}
+	ch := inF.Channels
+	keep := int(math.Ceil(trackFitSeconds * float64(inF.SampleRate)))
+	t := &tracked{stage: stage}
+	buf := make([]float64, block*ch)
+	for {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		n, rerr := r.ReadFrames(buf)
+		if n > 0 {
+			p := buf[:n*ch]
+			if len(t.head) < keep*ch {
+				t.head = append(t.head, p[:min(len(p), keep*ch-len(t.head))]...)
+			}
+			tk.Write(p)
+		}
+		if rerr != nil {
+			if errors.Is(rerr, io.EOF) {
+				break
+			}
+			return nil, rerr
+		}
+	}
+	if t.tracks, err = tk.Tracks(); err != nil {
+		return nil, err
+	}
+	t.lo, t.hi = math.Inf(1), math.Inf(-1)
+	for _, tr := range t.tracks {
+		lo, hi := tr.At(0), tr.At(0)
+		if ro, ok := tr.(rangeOf); ok {
+			lo, hi = ro.Range()
+		}
+		t.lo, t.hi = math.Min(t.lo, lo), math.Max(t.hi, hi)
+	}
+	return t, nil
+}
+
+// trackedCascade builds the cascade of a run with a tracking stage: the
+// fixed stages' sections, then the tracking comb (placed last: it is
+// the only stage that varies in time, and the fixed stages commute).
+func trackedCascade(f *design.Filter, t *tracked, cfg Config) (*Cascade, *trackComb, error) {
+	var sos []design.Section
+	for i, st := range f.Stages {
+		if i != t.stage {
+			sos = append(sos, st.Sections...)
+		}
+	}
+	d := f.Stages[t.stage]
+	fund := d.Spec.FundamentalHz
+	var harm []float64
+	for _, c := range d.NotchHz {
+		h := c / fund
+		if r := math.Round(h); math.Abs(h-r) < 1e-9 {
+			h = r // whole harmonic numbers, as notchCentres made them
+		}
+		harm = append(harm, h)
+	}
+	// Each pass is down by 3/passes dB at the edges, as in the design.
+	g2 := 0.5
+	if f.ZeroPhase {
+		g2 = math.Sqrt(0.5)
+	}
+	tv, err := newTrackComb(f.SampleRate, cfg, t.tracks, harm, d.NotchBandwidthHz, g2)
+	if err != nil {
+		return nil, nil, err
+	}
+	cfg.SteadyStart = false
+	c, err := newTrackedCascade(sos, cfg, tv)
+	if err != nil {
+		return nil, nil, err
+	}
+	return c, tv, nil
+}
+
+// toneSet lists the tones the ends are extended with: every fixed notch
+// centre and the tracking harmonics at the fundamental f0.
+func toneSet(f *design.Filter, t *tracked, f0 float64) []float64 {
+	var tones []float64
+	for i, st := range f.Stages {
+		if i == t.stage {
+			fund := st.Spec.FundamentalHz
+			for _, c := range st.NotchHz {
+				if hz := c / fund * f0; hz < f.SampleRate/2 {
+					tones = append(tones, hz)
+				}
+			}
+			continue
+		}
+		tones = append(tones, st.NotchHz...)
+	}
+	return tones
+}
+
+// trackedZeroPhaseOptions are zeroPhaseOptions with the ends extended by
+// the hum at the track's first and last frequencies, fitted over
+// trackFitSeconds, and the tracked cascade.
+func trackedZeroPhaseOptions(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, frames int64, channels, block int) ZeroPhaseOptions {
+	opt := zeroPhaseOptions(f, frames, channels, block)
+	opt.PadFrames = int(min(int64(opt.PadFrames), max(frames-1, 0)))
+	end := float64(frames) / f.SampleRate
+	start, last := toneSet(f, t, t.tracks[0].At(0)), toneSet(f, t, t.tracks[0].At(end))
+	if len(start) == len(last) && len(start) > 0 {
+		fit := int(math.Ceil(trackFitSeconds * f.SampleRate))
+		if cols := 1 + 2*len(start); fit >= 2*cols && int64(fit) <= frames/2 {
+			opt.Extension, opt.ToneHz, opt.ToneHzEnd, opt.FitFrames = ExtendTones, start, last, fit
+		} else {
+			opt.Extension, opt.ToneHz, opt.ToneHzEnd, opt.FitFrames = ExtendOdd, nil, nil, 0
+		}
+	}
+	opt.cascade = c
+	tv.setPositions(-int64(opt.PadFrames), frames+int64(opt.PadFrames)-1)
+	return opt
+}
+
+// preroll runs the tracked cascade over the hum extrapolated before the
+// signal (fitted to its first trackFitSeconds, as a zero-phase run's left
+// extension), so that a causal run starts settled: a 0.5 Hz notch
+// started from rest takes seconds to reach its depth.
+func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) error {
+	tones := toneSet(f, t, t.tracks[0].At(0))
+	pad := f.DecaySamples(80, 1) // the dominant pole's figure, without simulation
+	pad = min(pad, memBudget/4/(8*ch))
+	m := len(t.head) / ch
+	if len(tones) == 0 || m < 2*(1+2*len(tones)) || pad == 0 {
+		tv.setPositions(0, 0)
+		return nil
+	}
+	var omega []float64
+	for _, hz := range tones {
+		omega = append(omega, 2*math.Pi*hz/f.SampleRate)
+	}
+	cs, err := fitTones(t.head, ch, omega)
+	if err != nil {
+		return err
+	}
+	// The fitted model before the signal, its rows by rotation: each
+	// tone's (cos, sin) is turned by its step and set exactly every
+	// prerollExactEvery frames, so that the turns' rounding (about 1e-16
+	// each) cannot build up. Only the pre-roll, whose output is thrown
+	// away, is made this way.
+	buf := make([]float64, pad*ch)
+	r := make([]float64, 1+2*len(omega))
+	steps := make([]complex128, len(omega))
+	for k, w := range omega {
+		steps[k] = complex(math.Cos(w), math.Sin(w))
+	}
+	for j := 0; j < pad; j++ {
+		if j%prerollExactEvery == 0 {
+			toneRow(r, float64(j-pad), omega)
+		} else {
+			for k, st := range steps {
+				c, s := r[1+2*k], r[2+2*k]
+				r[1+2*k], r[2+2*k] = c*real(st)-s*imag(st), c*imag(st)+s*real(st)
+			}
+		}
+		for k := 0; k < ch; k++ {
+			v := 0.0
+			for i, ri := range r {
+				v += ri * cs.Data[i*cs.Stride+k]
+			}
+			buf[j*ch+k] = v
+		}
+	}
+	tv.setPositions(-int64(pad), 0)
+	c.Prime(buf[:ch])
+	c.Process(buf, buf)
+	return nil
+}
