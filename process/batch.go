@@ -35,6 +35,9 @@ type PlanOptions struct {
 	// Recorded returns the design digest recorded for an output by an
 	// earlier run (FileResult.DesignDigest), or "" when there is none.
 	Recorded func(output string) string
+	// Context, if set, stops PlanInputs (between files, and in the
+	// designs it makes to compare digests) when it is cancelled.
+	Context context.Context
 }
 
 // Input is one input file found by Discover. Plan fills in its header.
@@ -181,7 +184,14 @@ func PlanInputs(found []Input, opt PlanOptions) ([]Item, error) {
 		a, _ := filepath.Abs(f.Path)
 		inAbs[a] = true
 	}
+	ctx := opt.Context
+	if ctx == nil {
+		ctx = context.Background()
+	}
 	for i, f := range found {
+		if err := ctx.Err(); err != nil {
+			return nil, fmt.Errorf("process: planning stopped: %w", err)
+		}
 		if !InShare(i, opt.Shard, opt.Shards) {
 			continue
 		}
@@ -252,7 +262,11 @@ func skipOrRefuse(f Input, out string, opt PlanOptions) (skip, refuse string) {
 	if opt.Job == nil {
 		return "", fmt.Sprintf("%s: the output %s exists; give --replace to redo it", f.Path, out)
 	}
-	filt, err := design.Design(opt.Job.Spec, float64(f.Format.SampleRate))
+	ctx := opt.Context
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	filt, err := design.DesignContext(ctx, opt.Job.Spec, float64(f.Format.SampleRate))
 	if err != nil {
 		// The design fails at this rate: filtering will say why.
 		return "", ""

@@ -369,3 +369,20 @@ func TestSpillShare(t *testing.T) {
 		}
 	}
 }
+
+// TestPlanCancelled: planning stops with the context's error once it is
+// cancelled.
+func TestPlanCancelled(t *testing.T) {
+	in := t.TempDir()
+	writeTone(t, filepath.Join(in, "a.wav"), 8000, 1, 0.1, pcm16, nil)
+	found, err := Discover([]string{in}, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	_, err = PlanInputs(found, PlanOptions{OutputDir: filepath.Join(in, "out"), Context: ctx})
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("error %v, want context.Canceled", err)
+	}
+}

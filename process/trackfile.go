@@ -36,6 +36,10 @@ var ErrNoTracker = errors.New("process: a tracking notch needs a hum tracker")
 // common practice).
 const trackFitSeconds = 0.25
 
+// prerollExactEvery is how often the causal pre-roll's tone model is
+// computed exactly rather than turned.
+const prerollExactEvery = 1024
+
 // tracked is the plan of a run with a tracking notch stage.
 type tracked struct {
 	stage  int // index in the filter's stages
@@ -205,13 +209,41 @@ func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) er
 		tv.setPositions(0, 0)
 		return nil
 	}
-	z := &zeroPhase{ch: ch}
+	var omega []float64
 	for _, hz := range tones {
-		z.omega = append(z.omega, 2*math.Pi*hz/f.SampleRate)
+		omega = append(omega, 2*math.Pi*hz/f.SampleRate)
 	}
-	buf := make([]float64, pad*ch)
-	if err := z.extrapolate(buf, t.head, -pad, z.omega); err != nil {
+	cs, err := fitTones(t.head, ch, omega)
+	if err != nil {
 		return err
+	}
+	// The fitted model before the signal, its rows by rotation: each
+	// tone's (cos, sin) is turned by its step and set exactly every
+	// prerollExactEvery frames, so that the turns' rounding (about 1e-16
+	// each) cannot build up. Only the pre-roll, whose output is thrown
+	// away, is made this way.
+	buf := make([]float64, pad*ch)
+	r := make([]float64, 1+2*len(omega))
+	steps := make([]complex128, len(omega))
+	for k, w := range omega {
+		steps[k] = complex(math.Cos(w), math.Sin(w))
+	}
+	for j := 0; j < pad; j++ {
+		if j%prerollExactEvery == 0 {
+			toneRow(r, float64(j-pad), omega)
+		} else {
+			for k, st := range steps {
+				c, s := r[1+2*k], r[2+2*k]
+				r[1+2*k], r[2+2*k] = c*real(st)-s*imag(st), c*imag(st)+s*real(st)
+			}
+		}
+		for k := 0; k < ch; k++ {
+			v := 0.0
+			for i, ri := range r {
+				v += ri * cs.Data[i*cs.Stride+k]
+			}
+			buf[j*ch+k] = v
+		}
 	}
 	tv.setPositions(-int64(pad), 0)
 	c.Prime(buf[:ch])

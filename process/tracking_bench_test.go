@@ -6,8 +6,8 @@ import (
 	"testing"
 
 	"github.com/wavsieve/wavsieve/design"
-	"github.com/wavsieve/wavsieve/internal/humscene"
 	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/humscene"
 )
 
 // BenchmarkNotchComb times the fixed comb and the tracking comb of the

@@ -10,8 +10,8 @@ import (
 
 	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/design"
-	"github.com/wavsieve/wavsieve/internal/humscene"
 	"github.com/wavsieve/wavsieve/process"
+	"github.com/wavsieve/wavsieve/process/humscene"
 )
 
 // Limits of the tracking notch's goal (measured with the twin-polarity

@@ -10,6 +10,7 @@ import (
 	"time"
 	"unsafe"
 
+	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/wavsieve/wavsieve/design"
@@ -396,33 +397,13 @@ func (z *zeroPhase) extendRight(pad, tail []float64, rep *EdgeReport) error {
 // model at t = from, from+1, ... into pad.
 func (z *zeroPhase) extrapolate(pad, x []float64, from int, omega []float64) error {
 	ch := z.ch
-	m := len(x) / ch
-	p := 1 + 2*len(omega)
-	if m < p {
-		return fmt.Errorf("process: tone extension: the signal has %d frames, the fit of %d tones needs %d", m, len(omega), p)
+	cs, err := fitTones(x, ch, omega)
+	if err != nil {
+		return err
 	}
-	row := func(dst []float64, t float64) {
-		dst[0] = 1
-		for k, w := range omega {
-			s, c := math.Sincos(w * t)
-			dst[1+2*k], dst[2+2*k] = c, s
-		}
-	}
-	a := mat.NewDense(m, p, nil)
-	for t := 0; t < m; t++ {
-		row(a.RawRowView(t), float64(t))
-	}
-	b := mat.NewDense(m, ch, append([]float64(nil), x...))
-	var qr mat.QR
-	qr.Factorize(a)
-	var coef mat.Dense
-	if err := qr.SolveTo(&coef, false, b); err != nil {
-		return fmt.Errorf("process: tone extension: the fit is ill-conditioned (tones too close for %d frames?): %w", m, err)
-	}
-	r := make([]float64, p)
-	cs := coef.RawMatrix()
+	r := make([]float64, 1+2*len(omega))
 	for j := 0; j < len(pad)/ch; j++ {
-		row(r, float64(from+j))
+		toneRow(r, float64(from+j), omega)
 		for k := 0; k < ch; k++ {
 			v := 0.0
 			for i, ri := range r {
@@ -432,6 +413,39 @@ func (z *zeroPhase) extrapolate(pad, x []float64, from int, omega []float64) err
 		}
 	}
 	return nil
+}
+
+// toneRow writes the row of the tone model at t: 1, then cos and sin of
+// each w_k t.
+func toneRow(dst []float64, t float64, omega []float64) {
+	dst[0] = 1
+	for k, w := range omega {
+		s, c := math.Sincos(w * t)
+		dst[1+2*k], dst[2+2*k] = c, s
+	}
+}
+
+// fitTones fits the tone model of extrapolate to the interleaved frames
+// of x, per channel, and returns its coefficients (a row per model
+// column, a column per channel).
+func fitTones(x []float64, ch int, omega []float64) (blas64.General, error) {
+	m := len(x) / ch
+	p := 1 + 2*len(omega)
+	if m < p {
+		return blas64.General{}, fmt.Errorf("process: tone extension: the signal has %d frames, the fit of %d tones needs %d", m, len(omega), p)
+	}
+	a := mat.NewDense(m, p, nil)
+	for t := 0; t < m; t++ {
+		toneRow(a.RawRowView(t), float64(t), omega)
+	}
+	b := mat.NewDense(m, ch, append([]float64(nil), x...))
+	var qr mat.QR
+	qr.Factorize(a)
+	var coef mat.Dense
+	if err := qr.SolveTo(&coef, false, b); err != nil {
+		return blas64.General{}, fmt.Errorf("process: tone extension: the fit is ill-conditioned (tones too close for %d frames?): %w", m, err)
+	}
+	return coef.RawMatrix(), nil
 }
 
 // readFull reads whole frames into dst until it is full or the source

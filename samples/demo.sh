@@ -5,8 +5,11 @@
 #      notches, zero-phase) and the pump-house vibration logger (a zero-phase
 #      elliptic low-pass), each file designed at its own sample rate, verifying
 #      every output against the spec,
-#   3. measure third-octave band levels of the recordings before and after,
-#   4. write one HTML report of all of it.
+#   3. prove the field recordings' filter chain with tone probes (six
+#      seconds of recording are too short to measure a 2 Hz wide notch, so
+#      the verification of step 2 is inconclusive there),
+#   4. measure third-octave band levels of the recordings before and after,
+#   5. write one HTML report of all of it.
 # Everything goes under out/demo (or the folder given as the first argument).
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -26,6 +29,11 @@ echo "== filter the field recordings"
 echo "== filter the vibration logger"
 "$ws" apply --spec samples/specs/vibration-lowpass-zero-phase.json --verify --replace \
   --output "$out/pumphouse" samples/pumphouse-vibration-12800.wav
+
+echo "== prove the field recordings' chain with tone probes (full table in $out/probe-reedmere-north.txt)"
+"$ws" verify --probe --spec samples/specs/rumble-and-hum.json --zero-phase \
+  --input samples/reedmere-north-48k.wav >"$out/probe-reedmere-north.txt" || true
+grep -E '^(Verdict|Note):' "$out/probe-reedmere-north.txt"
 
 echo "== third-octave band levels, before and after"
 "$ws" bands --json samples/reedmere-*.wav "$out"/reedmere/reedmere-*.wav >"$out/bands.json"

@@ -7,7 +7,7 @@ import (
 	"testing"
 
 	"github.com/wavsieve/wavsieve/design"
-	"github.com/wavsieve/wavsieve/internal/humscene"
+	"github.com/wavsieve/wavsieve/process/humscene"
 )
 
 // reportHumDropDB: the report must show the tracked hum this much lower

@@ -267,6 +267,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 		return ""
 	}
+	popt.Context = ctx
 	items, err := process.PlanInputs(found, popt)
 	if err != nil {
 		undo()

@@ -185,13 +185,8 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	plotFormat := fs.String("plot-format", "png", "`format` of the charts: png or svg")
 	recursive := fs.BoolP("recursive", "r", false, "descend into sub-folders of folder inputs")
 	help := fs.BoolP("help", "h", false, "show this help")
-	if err := fs.Parse(args); err != nil {
-		return report(stderr, "bands", usagef("%v", err), "")
-	}
-	if *help {
-		fmt.Fprint(stdout, bandsHelp)
-		fmt.Fprint(stdout, fs.FlagUsages())
-		return exitOK
+	if code, done := parseOrHelp(fs, args, "bands", bandsHelp, help, stdout, stderr); done {
+		return code
 	}
 	if fs.NArg() == 0 {
 		return report(stderr, "bands", usagef("no input files or folders given"), "")
@@ -612,15 +607,7 @@ func printBandStage(w io.Writer, f *design.Filter, i int, st design.Designed) {
 	one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
 	fmt.Fprintf(w, "  %-36s %12s %12s %16s\n", "mask point", "at (Hz)", "designed dB", "class 1 limits")
 	for _, m := range st.Mask {
-		v := one.MagnitudeDB(m.FrequencyHz)
-		lo := "-inf"
-		if !math.IsInf(m.LowerDB, -1) {
-			lo = fmt.Sprintf("%.1f", m.LowerDB)
-		}
-		ok := "ok"
-		if !m.Within(v) {
-			ok = "OUTSIDE"
-		}
+		v, lo, ok := maskCells(one, m)
 		fmt.Fprintf(w, "  %-36s %12.4f %12.3f %7s..%-7.1f %s\n", m.Label, m.FrequencyHz, v, lo, m.UpperDB, ok)
 	}
 	fmt.Fprintf(w, "  mask: %s; points above the Nyquist frequency are left out\n", st.Mask[0].Source)

@@ -55,13 +55,8 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.SetOutput(io.Discard)
 	asJSON := fs.Bool("json", false, "print the merged record and what is missing as JSON on stdout")
 	help := fs.BoolP("help", "h", false, "show this help")
-	if err := fs.Parse(args); err != nil {
-		return report(stderr, "gather", usagef("%v", err), "")
-	}
-	if *help {
-		fmt.Fprint(stdout, gatherHelp)
-		fmt.Fprint(stdout, fs.FlagUsages())
-		return exitOK
+	if code, done := parseOrHelp(fs, args, "gather", gatherHelp, help, stdout, stderr); done {
+		return code
 	}
 	if fs.NArg() != 1 {
 		return report(stderr, "gather", usagef("give one output folder"), "")

@@ -142,13 +142,8 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.StringVar(&o.plot, "plot", "", "draw the designed response, the spec's limits and the measurements to this `file` (.svg or .png)")
 	fs.StringVar(&o.tempDir, "temp-dir", "", "`folder` for the probe files (default: the system's)")
 	help := fs.BoolP("help", "h", false, "show this help")
-	if err := fs.Parse(args); err != nil {
-		return report(stderr, "verify", usagef("%v", err), "")
-	}
-	if *help {
-		fmt.Fprint(stdout, verifyHelp)
-		fmt.Fprint(stdout, fs.FlagUsages())
-		return exitOK
+	if code, done := parseOrHelp(fs, args, "verify", verifyHelp, help, stdout, stderr); done {
+		return code
 	}
 	if fs.NArg() > 0 {
 		if a := fs.Arg(0); a == "noise" || a == "tones" {

@@ -112,19 +112,28 @@ func printWeighting(w io.Writer, f *design.Filter, i int, st design.Designed) {
 		one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
 		fmt.Fprintf(w, "  %-8s %12s %9s %12s %16s\n", "nominal", "exact (Hz)", "table dB", "designed dB", "class 1 limits")
 		for _, m := range st.Mask {
-			v := one.MagnitudeDB(m.FrequencyHz)
-			lo := "-inf"
-			if !math.IsInf(m.LowerDB, -1) {
-				lo = fmt.Sprintf("%.1f", m.LowerDB)
-			}
-			ok := "ok"
-			if !m.Within(v) {
-				ok = "OUTSIDE"
-			}
+			v, lo, ok := maskCells(one, m)
 			fmt.Fprintf(w, "  %-8s %12.4f %9.1f %12.3f %7s..%-7.1f %s\n", m.Label, m.FrequencyHz, m.TargetDB, v, lo, m.UpperDB, ok)
 		}
 	} else if info.Standard == design.StandardISO8041 {
 		fmt.Fprintf(w, "  checked against its analog definition only: wavsieve carries no tolerance table for %s curves\n", info.Standard)
 	}
 	fmt.Fprintf(w, "  caution: %s\n", "weighted levels from a file are no sound level meter or vibration meter reading (see 'wavsieve help weighting')")
+}
+
+// maskCells gives the cells of one mask point's row in a stage report:
+// the designed response v (dB) of the one-stage filter at the point, the
+// lower limit as text ("-inf" when the mask has none) and "ok" or
+// "OUTSIDE". The band and weighting reports share it.
+func maskCells(one *design.Filter, m design.MaskPoint) (v float64, lo, ok string) {
+	v = one.MagnitudeDB(m.FrequencyHz)
+	lo = "-inf"
+	if !math.IsInf(m.LowerDB, -1) {
+		lo = fmt.Sprintf("%.1f", m.LowerDB)
+	}
+	ok = "ok"
+	if !m.Within(v) {
+		ok = "OUTSIDE"
+	}
+	return v, lo, ok
 }

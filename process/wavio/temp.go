@@ -24,7 +24,8 @@ const tempMark = ".wavsieve-tmp-"
 const staleAge = 10 * time.Second
 
 // CreateTemp creates a new temporary file in dir for base (see
-// RemoveStale), locked by this process, with mode 0600.
+// RemoveStale), locked by this process where the file system allows it,
+// with mode 0600.
 func CreateTemp(dir, base string) (*os.File, error) {
 	if dir == "" {
 		dir = "."
@@ -33,11 +34,9 @@ func CreateTemp(dir, base string) (*os.File, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := lockFile(f); err != nil {
-		f.Close()
-		os.Remove(f.Name())
-		return nil, err
-	}
+	// Best effort: on a file system without locks the file goes on
+	// unlocked, and RemoveStale judges it by its owner and age alone.
+	lockFile(f)
 	return f, nil
 }
 

@@ -24,7 +24,7 @@ import (
 
 	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/design"
-	"github.com/wavsieve/wavsieve/internal/humscene"
+	"github.com/wavsieve/wavsieve/process/humscene"
 )
 
 func main() {
