@@ -78,11 +78,14 @@ func levelPanel(s HumTrackPlot) *plot.Plot {
 		}
 	}
 	if lo <= hi {
-		low.Y.Min, low.Y.Max = lo-levelPadDB, hi+levelPadDB
+		low.Y.Min, low.Y.Max = lo-levelPadDB, hi+levelLegendPadDB
 	}
 	return low
 }
 
-// levelPadDB is the room left above and below the hum levels (common
-// practice for a readable plot, not a measured figure).
-const levelPadDB = 5
+// levelPadDB is the room left below the hum levels, levelLegendPadDB above
+// them, where the legend sits (chosen for a readable plot, not measured).
+const (
+	levelPadDB       = 5
+	levelLegendPadDB = 15
+)

@@ -29,7 +29,7 @@ func TestHumTrackRenders(t *testing.T) {
 func TestHumTrackLevelPanel(t *testing.T) {
 	s := HumTrackPlot{BlockTimesS: []float64{0.5, 1.5, 2.5}, InDB: []float64{-32, -32, -32}, OutDB: []float64{-90, math.Inf(-1), -100}}
 	p := levelPanel(s)
-	if p.Y.Max < -32+levelPadDB || p.Y.Min > -100-levelPadDB {
-		t.Errorf("level axis %g..%g dB; want at least %g..%g", p.Y.Min, p.Y.Max, -100.0-levelPadDB, -32.0+levelPadDB)
+	if p.Y.Max < -32+levelLegendPadDB || p.Y.Min > -100-levelPadDB {
+		t.Errorf("level axis %g..%g dB; want at least %g..%g", p.Y.Min, p.Y.Max, -100.0-levelPadDB, -32.0+levelLegendPadDB)
 	}
 }
