@@ -95,7 +95,11 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if err := writeFileAtomic(*output, b.Bytes()); err != nil {
 		return report(stderr, "report", err, "")
 	}
-	fmt.Fprintf(stderr, "wavsieve report: wrote %s (%d files, %d KiB)\n", *output, len(r.Files), b.Len()/1024)
+	files := "files"
+	if len(r.Files) == 1 {
+		files = "file"
+	}
+	fmt.Fprintf(stderr, "wavsieve report: wrote %s (%d %s, %d KiB)\n", *output, len(r.Files), files, b.Len()/1024)
 	return exitOK
 }
 
