@@ -73,7 +73,9 @@ func TestWeightingFlagChains(t *testing.T) {
 		t.Fatalf("exit %d, stdout %s, stderr %s", code, out, errs)
 	}
 	spec := filepath.Join(t.TempDir(), "hp.json")
-	os.WriteFile(spec, []byte(`{"family": "butterworth", "response": "highpass", "order": 2, "cutoff_hz": 0.3}`), 0o644)
+	if err := os.WriteFile(spec, []byte(`{"family": "butterworth", "response": "highpass", "order": 2, "cutoff_hz": 0.3}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	code, out, errs = runCmd(t, "design", "--spec", spec, "--weighting", "Wk", "--rate", "800")
 	if code != exitOK || !strings.Contains(out, "Stage 2: weighting Wk (ISO 8041-1:2017)") {
 		t.Fatalf("exit %d, stdout %s, stderr %s", code, out, errs)
@@ -129,7 +131,9 @@ func TestApplyWeighting(t *testing.T) {
 		buf[2*i] = 0.5 * math.Sin(2*math.Pi*1000*tt)
 		buf[2*i+1] = 0.5 * math.Sin(2*math.Pi*100*tt)
 	}
-	w.WriteFrames(buf)
+	if err := w.WriteFrames(buf); err != nil {
+		t.Fatal(err)
+	}
 	if err := w.Close(); err != nil {
 		t.Fatal(err)
 	}
