@@ -343,7 +343,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		switch r.Status {
 		case process.StatusFailed:
 			failed++
-			fmt.Fprintf(stderr, "wavsieve apply: %s\n", r.Error)
+			fmt.Fprintf(stderr, "wavsieve apply: %s\n", userMessage(r.Error))
 			if h := failureHint(r.Err); h != "" {
 				fmt.Fprintf(stderr, "hint: %s\n", h)
 			}

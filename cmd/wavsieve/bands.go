@@ -245,7 +245,7 @@ func runBands(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			failed++
 		}
 		if f.Error != "" {
-			fmt.Fprintf(stderr, "wavsieve bands: %s\n", f.Error)
+			fmt.Fprintf(stderr, "wavsieve bands: %s\n", userMessage(f.Error))
 		}
 		for _, w := range f.Warnings {
 			fmt.Fprintf(stderr, "wavsieve bands: %s: %s\n", f.Path, w)
