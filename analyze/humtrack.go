@@ -503,8 +503,9 @@ func (cs *coarse) at(p []float64, hz float64) float64 {
 
 // humAbove measures harmonic k of nominal f in one spectrum: the peak
 // within the search range over the median of the band one fundamental
-// wide around it (the peak's range left out).
-func (t *Tracker) humAbove(cs *coarse, p []float64, f float64, k int, scratch []float64) (peak, floor float64) {
+// wide around it (the peak's range left out). *scratchp is reused from
+// call to call.
+func (t *Tracker) humAbove(cs *coarse, p []float64, f float64, k int, scratchp *[]float64) (peak, floor float64) {
 	kf := float64(k)
 	lo := int(math.Floor((kf*(f-t.o.SearchHz) - 1.5) / cs.df))
 	hi := int(math.Ceil((kf*(f+t.o.SearchHz) + 1.5) / cs.df))
@@ -515,12 +516,13 @@ func (t *Tracker) humAbove(cs *coarse, p []float64, f float64, k int, scratch []
 	for i := lo; i <= hi; i++ {
 		peak = math.Max(peak, p[i])
 	}
-	scratch = scratch[:0]
+	scratch := (*scratchp)[:0]
 	for i := blo; i <= bhi; i++ {
 		if i < lo || i > hi {
 			scratch = append(scratch, p[i])
 		}
 	}
+	*scratchp = scratch
 	if len(scratch) == 0 {
 		return peak, 0
 	}
@@ -586,7 +588,7 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 			for ci := range chans {
 				var sp, sf float64
 				for b := 0; b < nb; b++ {
-					p, fl := t.humAbove(cs, cs.psd[b][ci], f, k, scratch)
+					p, fl := t.humAbove(cs, cs.psd[b][ci], f, k, &scratch)
 					sp += p
 					sf += fl
 				}
@@ -619,7 +621,7 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	floors := make([]float64, len(used))
 	for b := 0; b < nb; b++ {
 		for j, u := range used {
-			_, fl := t.humAbove(cs, cs.psd[b][u.c], nominal, u.k, scratch)
+			_, fl := t.humAbove(cs, cs.psd[b][u.c], nominal, u.k, &scratch)
 			floors[j] = fl / math.Ln2
 		}
 		score := func(i int) float64 {
@@ -794,13 +796,18 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 				e := 2 * math.Pi * kf * (ref[i+1] - ref[i]) / t.rate
 				q *= complex(1-e*e/2, -e)
 			}
+			// d r and d conj(r) share their four products (the same
+			// values as the complex products give).
 			r1 := rot[i%L]
 			r2 := rot[(2*i)%L]
+			dr, di := real(d), imag(d)
+			ac, bd, ad, bc := dr*real(r1), di*imag(r1), dr*imag(r1), di*real(r1)
 			run[0] += d
-			run[1] += d * r1
-			run[2] += d * cmplx.Conj(r1)
-			run[3] += d * r2
-			run[4] += d * cmplx.Conj(r2)
+			run[1] += complex(ac-bd, ad+bc)
+			run[2] += complex(ac+bd, bc-ad)
+			ac, bd, ad, bc = dr*real(r2), di*imag(r2), dr*imag(r2), di*real(r2)
+			run[3] += complex(ac-bd, ad+bc)
+			run[4] += complex(ac+bd, bc-ad)
 		}
 		snap(n)
 		z := make([]complex128, m)
