@@ -166,6 +166,15 @@ func (t *HumTrack) Range() (lo, hi float64) {
 	return slices.Min(t.Hz), slices.Max(t.Hz)
 }
 
+// Found returns the share of the track's points where the hum was
+// measured (the rest bridged from their neighbours), 0 to 1.
+func (t *HumTrack) Found() float64 {
+	if len(t.Hz) == 0 {
+		return 0
+	}
+	return 1 - float64(t.Bridged)/float64(len(t.Hz))
+}
+
 // rateSpanS is the span over which the rate of change is measured, so
 // that the estimate's noise from one hop to the next does not read as a
 // fast change.

@@ -252,6 +252,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 			return res, fmt.Errorf("%s: tracking the hum: %w (wavsieve survey shows what hum the file holds; without tracking a fixed notch runs)", job.Input, err)
 		}
 		res.TrackRangeHz = []float64{trk.lo, trk.hi}
+		res.Warnings = append(res.Warnings, trk.warnings(filt.Stages[tIdx].Spec.FundamentalHz)...)
 	}
 	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()

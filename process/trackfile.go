@@ -40,12 +40,42 @@ const trackFitSeconds = 0.25
 // computed exactly rather than turned.
 const prerollExactEvery = 1024
 
+// trackFarHz is how far the whole track may sit from the stage's
+// fundamental_hz before the run warns: an interconnected grid wanders
+// about +-0.2 Hz around its nominal frequency (common practice), so a
+// track that never comes within 0.25 Hz of it has more likely followed
+// something else (a 60 Hz file given 50 Hz) or a generator off its
+// setting.
+const trackFarHz = 0.25
+
+// trackMinFound is the least share of the track's points where the hum
+// must have been measured (the rest bridged) before the run warns.
+const trackMinFound = 0.5
+
 // tracked is the plan of a run with a tracking notch stage.
 type tracked struct {
 	stage  int // index in the filter's stages
 	tracks []FrequencyTrack
 	lo, hi float64 // range of the fundamental over all tracks
+	found  float64 // least share of points measured over all tracks (1 if unknown)
 	head   []float64
+}
+
+// foundOf is implemented by tracks that know the share of their points
+// where the hum was measured.
+type foundOf interface{ Found() float64 }
+
+// warnings returns what the run should warn of about the track: a range
+// far from the stage's fundamental, and a hum found in too few places.
+func (t *tracked) warnings(fundamental float64) []string {
+	var w []string
+	if d := math.Max(t.lo-fundamental, fundamental-t.hi); d > trackFarHz {
+		w = append(w, fmt.Sprintf("the tracked hum stays between %.2f and %.2f Hz, %.2f Hz or more from the notch's fundamental_hz %g: the notches may follow noise rather than the hum; check the mains frequency (wavsieve survey shows the hum the file holds)", t.lo, t.hi, d, fundamental))
+	}
+	if t.found < trackMinFound {
+		w = append(w, fmt.Sprintf("the hum was measured in only %.0f%% of the track's points, the rest bridged: the notches may not follow the hum; check the mains frequency and the level of the hum (wavsieve survey)", 100*t.found))
+	}
+	return w
 }
 
 // trackingStage returns the index of the filter's tracking notch stage,
@@ -108,8 +138,11 @@ func trackPass(ctx context.Context, job *FileJob, f *design.Filter, stage int, b
 	if t.tracks, err = tk.Tracks(); err != nil {
 		return nil, err
 	}
-	t.lo, t.hi = math.Inf(1), math.Inf(-1)
+	t.lo, t.hi, t.found = math.Inf(1), math.Inf(-1), 1
 	for _, tr := range t.tracks {
+		if fo, ok := tr.(foundOf); ok {
+			t.found = math.Min(t.found, fo.Found())
+		}
 		lo, hi := tr.At(0), tr.At(0)
 		if ro, ok := tr.(rangeOf); ok {
 			lo, hi = ro.Range()
