@@ -70,6 +70,7 @@ type trackComb struct {
 	shared bool
 	harm   []float64 // harmonic numbers
 	k2, c2 []float64 // width coefficients per notch
+	p2, q2 []float64 // (1 + k2)/2 and c2/2: the notch output's weights
 	cell   int       // frames per update
 	// state per channel of chans, per notch: s1, s2
 	st [][]float64
@@ -114,6 +115,8 @@ func newTrackComb(rate float64, cfg Config, tracks []FrequencyTrack, harmonics, 
 		k2 := notchRadiusCoef(bw, rate, powerRatio)
 		t.k2 = append(t.k2, k2)
 		t.c2 = append(t.c2, math.Sqrt((1-k2)*(1+k2)))
+		t.p2 = append(t.p2, (1+k2)/2)
+		t.q2 = append(t.q2, t.c2[len(t.c2)-1]/2)
 	}
 	t.cell = max(1, int(math.Round(trackUpdateSeconds*rate)))
 	t.st = make([][]float64, len(t.chans))
@@ -259,6 +262,10 @@ func (t *trackComb) run(x []float64, dir int) {
 //	f1 = c2 v - k2 s2      g2 = k2 v + c2 s2     (stage 2 rotation)
 //	f0 = c1 f1 - k1 s1     g1 = k1 f1 + c1 s1    (stage 1 rotation)
 //	s1 = f0                s2 = g1
+//
+// with the notch output taken as p2 v + q2 s2, p2 = (1 + k2)/2,
+// q2 = c2/2: the same value as (v + g2)/2 up to rounding, with one
+// multiply and one add fewer.
 func (t *trackComb) runCell(x []float64, off, m, step int, s []float64) {
 	nn := 0
 	// Three notches at a time in one loop (two where four are left):
@@ -267,31 +274,34 @@ func (t *trackComb) runCell(x []float64, off, m, step int, s []float64) {
 	// grouping, so the grouping does not change the output.
 	for len(t.harm)-nn >= 3 && len(t.harm)-nn != 4 {
 		ak1, ac1, ak2, ac2 := t.k1[nn], t.c1[nn], t.k2[nn], t.c2[nn]
+		ap2, aq2 := t.p2[nn], t.q2[nn]
 		bk1, bc1, bk2, bc2 := t.k1[nn+1], t.c1[nn+1], t.k2[nn+1], t.c2[nn+1]
+		bp2, bq2 := t.p2[nn+1], t.q2[nn+1]
 		ck1, cc1, ck2, cc2 := t.k1[nn+2], t.c1[nn+2], t.k2[nn+2], t.c2[nn+2]
+		cp2, cq2 := t.p2[nn+2], t.q2[nn+2]
 		as1, as2, bs1, bs2 := s[2*nn], s[2*nn+1], s[2*nn+2], s[2*nn+3]
 		cs1, cs2 := s[2*nn+4], s[2*nn+5]
 		i := off
 		for j := 0; j < m; j++ {
 			v := x[i]
 			f1 := ac2*v - ak2*as2
-			g2 := ak2*v + ac2*as2
+			g2 := ap2*v + aq2*as2
 			f0 := ac1*f1 - ak1*as1
 			as2 = ak1*f1 + ac1*as1
 			as1 = f0
-			v = 0.5 * (v + g2)
+			v = g2
 			f1 = bc2*v - bk2*bs2
-			g2 = bk2*v + bc2*bs2
+			g2 = bp2*v + bq2*bs2
 			f0 = bc1*f1 - bk1*bs1
 			bs2 = bk1*f1 + bc1*bs1
 			bs1 = f0
-			v = 0.5 * (v + g2)
+			v = g2
 			f1 = cc2*v - ck2*cs2
-			g2 = ck2*v + cc2*cs2
+			g2 = cp2*v + cq2*cs2
 			f0 = cc1*f1 - ck1*cs1
 			cs2 = ck1*f1 + cc1*cs1
 			cs1 = f0
-			x[i] = 0.5 * (v + g2)
+			x[i] = g2
 			i += step
 		}
 		s[2*nn], s[2*nn+1], s[2*nn+2], s[2*nn+3] = as1, as2, bs1, bs2
@@ -300,39 +310,42 @@ func (t *trackComb) runCell(x []float64, off, m, step int, s []float64) {
 	}
 	for ; nn+2 <= len(t.harm); nn += 2 {
 		ak1, ac1, ak2, ac2 := t.k1[nn], t.c1[nn], t.k2[nn], t.c2[nn]
+		ap2, aq2 := t.p2[nn], t.q2[nn]
 		bk1, bc1, bk2, bc2 := t.k1[nn+1], t.c1[nn+1], t.k2[nn+1], t.c2[nn+1]
+		bp2, bq2 := t.p2[nn+1], t.q2[nn+1]
 		as1, as2, bs1, bs2 := s[2*nn], s[2*nn+1], s[2*nn+2], s[2*nn+3]
 		i := off
 		for j := 0; j < m; j++ {
 			v := x[i]
 			f1 := ac2*v - ak2*as2
-			g2 := ak2*v + ac2*as2
+			g2 := ap2*v + aq2*as2
 			f0 := ac1*f1 - ak1*as1
 			as2 = ak1*f1 + ac1*as1
 			as1 = f0
-			v = 0.5 * (v + g2)
+			v = g2
 			f1 = bc2*v - bk2*bs2
-			g2 = bk2*v + bc2*bs2
+			g2 = bp2*v + bq2*bs2
 			f0 = bc1*f1 - bk1*bs1
 			bs2 = bk1*f1 + bc1*bs1
 			bs1 = f0
-			x[i] = 0.5 * (v + g2)
+			x[i] = g2
 			i += step
 		}
 		s[2*nn], s[2*nn+1], s[2*nn+2], s[2*nn+3] = as1, as2, bs1, bs2
 	}
 	for ; nn < len(t.harm); nn++ {
 		k1, c1, k2, c2 := t.k1[nn], t.c1[nn], t.k2[nn], t.c2[nn]
+		p2, q2 := t.p2[nn], t.q2[nn]
 		s1, s2 := s[2*nn], s[2*nn+1]
 		i := off
 		for j := 0; j < m; j++ {
 			v := x[i]
 			f1 := c2*v - k2*s2
-			g2 := k2*v + c2*s2
+			g2 := p2*v + q2*s2
 			f0 := c1*f1 - k1*s1
 			s2 = k1*f1 + c1*s1
 			s1 = f0
-			x[i] = 0.5 * (v + g2)
+			x[i] = g2
 			i += step
 		}
 		s[2*nn], s[2*nn+1] = s1, s2
