@@ -349,12 +349,16 @@ func (t *Tracker) Write(x []float64) {
 		panic(fmt.Sprintf("analyze: Tracker.Write: %d samples is not a whole number of %d-channel frames", len(x), ch))
 	}
 	n := len(x) / ch
-	for c := 0; c < ch; c++ {
-		p := t.pend[c]
-		for i := 0; i < n; i++ {
-			p = append(p, x[i*ch+c])
+	if ch == 1 {
+		t.pend[0] = append(t.pend[0], x...)
+	} else {
+		for c := 0; c < ch; c++ {
+			p := t.pend[c]
+			for i := 0; i < n; i++ {
+				p = append(p, x[i*ch+c])
+			}
+			t.pend[c] = p
 		}
-		t.pend[c] = p
 	}
 	t.frames += int64(n)
 	t.decimate(false)
@@ -786,6 +790,8 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 		// of ref's change (exp(-i e) = 1 - i e - e^2/2 to e^3/6, below 1e-14
 		// here); both are set exactly every trackExactEvery samples.
 		var pp, q complex128
+		w := 2 * math.Pi * kf
+		j1, j2 := 0, 0 // i mod L and 2i mod L
 		for i := 0; i < n; i++ {
 			snap(i)
 			if i%trackExactEvery == 0 {
@@ -802,13 +808,19 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 			d := complex(v*real(pp), v*imag(pp))
 			pp *= q
 			if i+1 < n {
-				e := 2 * math.Pi * kf * (ref[i+1] - ref[i]) / t.rate
+				e := w * (ref[i+1] - ref[i]) / t.rate
 				q *= complex(1-e*e/2, -e)
 			}
 			// d r and d conj(r) share their four products (the same
 			// values as the complex products give).
-			r1 := rot[i%L]
-			r2 := rot[(2*i)%L]
+			r1 := rot[j1]
+			r2 := rot[j2]
+			if j1++; j1 == L {
+				j1 = 0
+			}
+			if j2 += 2; j2 >= L {
+				j2 -= L
+			}
 			dr, di := real(d), imag(d)
 			ac, bd, ad, bc := dr*real(r1), di*imag(r1), dr*imag(r1), di*real(r1)
 			run[0] += d
