@@ -322,6 +322,9 @@ func NewTracker(o TrackOptions) (*Tracker, error) {
 			}
 			x := 2 * math.Pi * float64(i) / float64(n-1)
 			t.h[i] = s * (0.42 - 0.5*math.Cos(x) + 0.08*math.Cos(2*x))
+			if i > t.half {
+				t.h[i] = t.h[n-1-i] // exactly symmetric (see foldedDot)
+			}
 			sum += t.h[i]
 		}
 		for i := range t.h {
@@ -380,6 +383,10 @@ func (t *Tracker) decimate(final bool) {
 		for c := 0; c < ch; c++ {
 			p := t.pend[c]
 			seg := p[from:min(from+len(t.h), len(p))] // zeros beyond the end
+			if len(seg) == len(t.h) {
+				t.low[c] = append(t.low[c], float32(foldedDot(t.h, seg)))
+				continue
+			}
 			h := t.h[:len(seg)]
 			// Four partial sums, so that the multiply-adds overlap.
 			var s0, s1, s2, s3 float64
@@ -406,6 +413,30 @@ func (t *Tracker) decimate(final bool) {
 		}
 		t.base += int64(k)
 	}
+}
+
+// foldedDot returns the sum of h[i] x[i] for a symmetric h of odd
+// length (h[i] = h[len-1-i], as the windowed sinc), folding x around the
+// centre so that each coefficient multiplies once.
+func foldedDot(h, x []float64) float64 {
+	n := len(h)
+	x = x[:n]
+	half := n / 2
+	var s0, s1, s2, s3 float64
+	i := 0
+	for ; i+4 <= half; i += 4 {
+		s0 += h[i] * (x[i] + x[n-1-i])
+		s1 += h[i+1] * (x[i+1] + x[n-2-i])
+		s2 += h[i+2] * (x[i+2] + x[n-3-i])
+		s3 += h[i+3] * (x[i+3] + x[n-4-i])
+	}
+	for ; i < half; i++ {
+		s0 += h[i] * (x[i] + x[n-1-i])
+	}
+	if n%2 == 1 {
+		s1 += h[half] * x[half]
+	}
+	return (s0 + s1) + (s2 + s3)
 }
 
 // harm is one harmonic of one channel used for tracking.
@@ -797,7 +828,7 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 		// of ref's change (exp(-i e) = 1 - i e - e^2/2 to e^3/6, below 1e-14
 		// here); both are set exactly every trackExactEvery samples.
 		var pp, q complex128
-		w := 2 * math.Pi * kf
+		w := 2 * math.Pi * kf / t.rate
 		j1, j2 := 0, 0 // i mod L and 2i mod L
 		for i := 0; i < n; i++ {
 			snap(i)
@@ -815,7 +846,7 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 			d := complex(v*real(pp), v*imag(pp))
 			pp *= q
 			if i+1 < n {
-				e := w * (ref[i+1] - ref[i]) / t.rate
+				e := w * (ref[i+1] - ref[i])
 				q *= complex(1-e*e/2, -e)
 			}
 			// d r and d conj(r) share their four products (the same

@@ -261,6 +261,13 @@ func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) er
 	for k, w := range omega {
 		steps[k] = complex(math.Cos(w), math.Sin(w))
 	}
+	// The fitted coefficients of each channel, in a row.
+	cols := make([]float64, ch*len(r))
+	for k := 0; k < ch; k++ {
+		for i := range r {
+			cols[k*len(r)+i] = cs.Data[i*cs.Stride+k]
+		}
+	}
 	for j := 0; j < pad; j++ {
 		if j%prerollExactEvery == 0 {
 			toneRow(r, float64(j-pad), omega)
@@ -272,8 +279,8 @@ func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) er
 		}
 		for k := 0; k < ch; k++ {
 			v := 0.0
-			for i, ri := range r {
-				v += ri * cs.Data[i*cs.Stride+k]
+			for i, ci := range cols[k*len(r) : (k+1)*len(r)] {
+				v += r[i] * ci
 			}
 			buf[j*ch+k] = v
 		}
