@@ -20,6 +20,17 @@ const leakShare = 0.5
 // judge reads plan pi on checked channel ci (numbered channel) and gives
 // its verdict.
 func (s *Session) judge(pi, ci, channel int) Check {
+	c := s.judgeAt(pi, ci, channel)
+	if pl := &s.plans[pi]; pl.harm > 0 {
+		k := s.trackOf(channel - 1)
+		c.FrequencyHz = pl.harm * s.tmean[k]
+		c.TrackRangeHz = []float64{s.tlo[k], s.thi[k]}
+		c.Reason += fmt.Sprintf(" (read along the hum's track as harmonic %g of a fundamental from %.3f to %.3f Hz, at %.6g Hz on average; nominal centre %.6g Hz; the limit of %.0f dB is this program's own bound for a tracking notch)", pl.harm, s.tlo[k], s.thi[k], c.FrequencyHz, pl.p.FrequencyHz, TrackDepthDB)
+	}
+	return c
+}
+
+func (s *Session) judgeAt(pi, ci, channel int) Check {
 	pl := &s.plans[pi]
 	p := pl.p
 	c := Check{Channel: channel, Stage: p.Stage + 1, Kind: p.Kind, FrequencyHz: p.FrequencyHz, Label: p.Label, Verdict: Unmeasurable}

@@ -213,7 +213,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	vo := verify.Options{Channels: only, Segment: o.segment}
+	vo := verify.Options{Channels: only, Segment: o.segment, NewTracker: newHumTracker}
 	doc := verifyDocument{Checks: []verify.Check{}, Note: verifyNote}
 	for _, p := range pairs {
 		var res *verify.Result
