@@ -22,6 +22,17 @@ const leakShare = 0.5
 func (s *Session) judge(pi, ci, channel int) Check {
 	c := s.judgeAt(pi, ci, channel)
 	if pl := &s.plans[pi]; pl.harm > 0 {
+		// The reading is the hum's only where the hum's line stands well
+		// above the sound around it: sound across the window's main lobe
+		// passes the narrow notch mostly unchanged and lifts the reading
+		// by up to its share of the input. A reading above the limit that
+		// this share alone can explain decides nothing.
+		if a := s.acc[pi][ci]; c.Verdict == Fail && a.xx > 0 {
+			if share := 20 * math.Log10(a.side/a.xx); share > TrackDepthDB-SeeBelowDB {
+				c.Verdict, c.MarginDB = Unmeasurable, nil
+				c.Reason = fmt.Sprintf("the reading (%.2f dB) lies above the limit, but the hum's line stands only %.1f dB above the input's sound beside it, which alone can lift the reading that far", *c.MeasuredDB, -dB10(a.side/a.xx))
+			}
+		}
 		k := s.trackOf(channel - 1)
 		c.FrequencyHz = pl.harm * s.tmean[k]
 		c.TrackRangeHz = []float64{s.tlo[k], s.thi[k]}

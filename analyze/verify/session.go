@@ -131,6 +131,7 @@ type sums struct {
 	xx, yy float64
 	xy     complex128
 	n      int
+	side   float64 // tracked centres: the input's power sideBins away
 }
 
 // Session reads one run from its input and output frames fed in order.
@@ -498,12 +499,14 @@ func (s *Session) segment(g *group) {
 		}
 		for _, pi := range g.plans {
 			var X, Y complex128
+			a := &s.acc[pi][ci]
 			if g.tracked {
-				X, Y = trackedDFT(g.wx, g.wy, g.ph, s.plans[pi].harm)
+				var side float64
+				X, Y, side = trackedDFT(g.wx, g.wy, g.ph, s.plans[pi].harm)
+				a.side += side
 			} else {
 				X, Y = singleDFT(g.wx, g.wy, s.plans[pi].omega)
 			}
-			a := &s.acc[pi][ci]
 			a.xx += real(X)*real(X) + imag(X)*imag(X)
 			a.yy += real(Y)*real(Y) + imag(Y)*imag(Y)
 			a.xy += cmplx.Conj(X) * Y

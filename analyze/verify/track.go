@@ -44,11 +44,19 @@ func (s *Session) trackOf(c int) int {
 	return 0
 }
 
+// sideBins is how far from a tracked centre, in bins of its segment, the
+// input is also read to tell the hum's line from the sound around it:
+// past the window's main lobe (lobeBins), and short of the neighbouring
+// harmonics (at least 4*lobeBins bins away, see planTracked).
+const sideBins = 6
+
 // planTracked plans a check of the tracking notch stage. Its centres are
 // read along the track, at harm * f(t), against TrackDepthDB; the hum is
-// a line there once demodulated, so the reading is taken as a tone's
-// (the window only long enough to keep the image at -harm * f out of its
-// main lobe). The notch's edges move with the hum and are not read.
+// a line there once demodulated, so the reading is taken as a tone's: the
+// window only long enough to keep out of its main lobe, by a factor of 4,
+// the image at -harm * f, the Nyquist frequency and the neighbouring
+// harmonics (one fundamental away). The notch's edges move with the hum
+// and are not read.
 func (s *Session) planTracked(p Point, usable int64) plan {
 	st := s.f.Stages[p.Stage]
 	pl := plan{p: p, omega: 2 * math.Pi * p.FrequencyHz / s.fs}
@@ -86,14 +94,14 @@ func (s *Session) planTracked(p Point, usable int64) plan {
 		return pl
 	}
 	hi := pl.harm * maxOf(s.thi)
-	room := math.Min(pl.harm*minOf(s.tlo), s.fs/2-hi)
+	room := math.Min(math.Min(pl.harm*minOf(s.tlo), s.fs/2-hi), minOf(s.tlo))
 	if !(room > 0) {
 		pl.harm = 0
 		pl.reason = fmt.Sprintf("the track takes this harmonic to %.6g Hz, at or past the Nyquist frequency", hi)
 		return pl
 	}
 	seg := MinSegment
-	for seg < MaxSegment && lobeBins*s.fs/float64(seg) > room/2 {
+	for seg < MaxSegment && lobeBins*s.fs/float64(seg) > room/4 {
 		seg *= 2
 	}
 	if s.o.Segment != 0 {
@@ -125,17 +133,27 @@ func (s *Session) trackPhase(g *group, ci int) {
 // trackedDFT returns sum x[n] e^{-j h ph[n]} and the same of y: the
 // segments demodulated by the harmonic's phase along the track (a
 // heterodyne), so that a hum moving with the track stays at one
-// frequency, 0, in the reading.
-func trackedDFT(x, y, ph []float64, h float64) (complex128, complex128) {
+// frequency, 0, in the reading. side is the mean of |X|^2 read sideBins
+// bins above and below, sum x[n] e^{-j (h ph[n] +- 2 pi sideBins n / N)}:
+// the sound around the line.
+func trackedDFT(x, y, ph []float64, h float64) (X, Y complex128, side float64) {
 	var xr, xi, yr, yi float64
+	var up, down complex128
+	d := 2 * math.Pi * sideBins / float64(len(x))
 	for t := range x {
-		sn, cs := math.Sincos(h * ph[t])
+		a := h * ph[t]
+		sn, cs := math.Sincos(a)
 		xr += x[t] * cs
 		xi -= x[t] * sn
 		yr += y[t] * cs
 		yi -= y[t] * sn
+		su, cu := math.Sincos(a + d*float64(t))
+		up += complex(x[t]*cu, -x[t]*su)
+		sd, cd := math.Sincos(a - d*float64(t))
+		down += complex(x[t]*cd, -x[t]*sd)
 	}
-	return complex(xr, xi), complex(yr, yi)
+	side = (real(up)*real(up) + imag(up)*imag(up) + real(down)*real(down) + imag(down)*imag(down)) / 2
+	return complex(xr, xi), complex(yr, yi), side
 }
 
 func maxOf(v []float64) float64 {
