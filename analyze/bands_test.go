@@ -139,8 +139,10 @@ func TestBankPinkNoiseEqualPerOctave(t *testing.T) {
 // upper edge (Parseval), plus what the bands' skirts overlap: adjacent
 // Butterworth bands cross at -3 dB, and the noise bandwidth of an order-N
 // Butterworth is (pi/2N) / sin(pi/2N) of its -3 dB width (1.047 for N = 3,
-// +0.20 dB), so the sum may exceed the power between the edges by about
-// that much and never fall short of it.
+// +0.20 dB; by definition, the integral of 1/(1 + x^2N) over x > 0 for
+// the lowpass prototype, which a band-pass keeps approximately), so the
+// sum may exceed the power between the edges by about that much and never
+// fall short of it.
 func TestBankEnergy(t *testing.T) {
 	const rate = 48000
 	const lowDB, highDB = -0.02, 0.25 // the statistical error of 22 s of noise is below 0.02 dB

@@ -194,7 +194,7 @@ func TestResultJSON(t *testing.T) {
 	if err := json.Unmarshal(b, &m); err != nil {
 		t.Fatal(err)
 	}
-	// The keys of the spectrum document in DESIGN.md.
+	// The keys of the spectrum document that 'wavsieve help json' lists.
 	for _, k := range []string{"sample_rate_hz", "window", "segment", "overlap", "scaling", "units", "frequencies_hz", "channels"} {
 		if _, ok := m[k]; !ok {
 			t.Errorf("key %q missing from %s", k, b[:200])

@@ -991,7 +991,7 @@ func notchStage(h *Hum) (design.Stage, string) {
 	q = math.Min(q, h.FundamentalHz/notchMinWidthHz)
 	note := ""
 	if q < notchMinQ {
-		note = fmt.Sprintf("the hum drifts %.3f Hz: notches of q %g cannot follow it; consider tracking the hum instead", h.DriftHz, notchMinQ)
+		note = fmt.Sprintf("the hum drifts %.3f Hz: notches of q %g cannot follow it; consider tracking the hum instead (apply --track, or \"tracking\": true on the notch stage)", h.DriftHz, notchMinQ)
 		q = notchMinQ
 	}
 	q = math.Floor(q*10) / 10 // rounded down: wider, never narrower

@@ -482,6 +482,9 @@ func spectralRoots(c []float64, umax float64) ([]complex128, bool) {
 // mask returns the standard's table as mask points for the rows below
 // 0.45 of the rate, and fills the table figures of info.
 func (c *curve) mask(d ZPK, rate float64, info *WeightingInfo) []MaskPoint {
+	if t, ok := isoTolerance[c.name]; ok && c.standard == StandardISO8041 {
+		return c.isoMask(t, rate)
+	}
 	if !c.iec {
 		return nil
 	}
@@ -529,6 +532,31 @@ func (c *curve) mask(d ZPK, rate float64, info *WeightingInfo) []MaskPoint {
 		info.Class = 2
 	default:
 		info.Class = 0
+	}
+	return out
+}
+
+// isoMask returns the tolerance mask of an ISO 8041-1 curve: one row at
+// the exact frequency of every one-third-octave band of the curve's
+// Annex B table below 0.45 of the rate. The design goal of a row is the
+// analog definition at its exact frequency (Annex B tabulates the same
+// formulas); its limits are those of Table 5 for the row's region of
+// Table 4 (see isoTolerance). ISO 8041-1 has no classes: info keeps
+// Class -1 and no table deviation.
+func (c *curve) isoMask(t isoTol, rate float64) []MaskPoint {
+	var out []MaskPoint
+	src := StandardISO8041 + ", Tables 4 and 5 (" + c.name + " weighting tolerances; goal: the analog definition)"
+	for n := t.lo; n <= t.hi; n++ {
+		hz := math.Pow(10, float64(n)/10)
+		if hz >= 0.45*rate {
+			break
+		}
+		target := db(c.analog(hz))
+		lo, up := t.limitsDB(n)
+		out = append(out, MaskPoint{
+			FrequencyHz: hz, Label: thirdOctaveLabel(n), TargetDB: target,
+			LowerDB: target + lo, UpperDB: target + up, Source: src,
+		})
 	}
 	return out
 }

@@ -1,6 +1,9 @@
 package design
 
-import "math"
+import (
+	"math"
+	"strings"
+)
 
 // The standard weightings: their analog definitions and tables.
 //
@@ -121,4 +124,95 @@ var isoTable = map[string]isoParams{
 	"Wj": {f1: 0.4, f2: 100, f5: 3.75, q5: 0.91, f6: 5.32, q6: 0.91, k: 1, use: "vertical head vibration, recumbent (ISO 2631-1)"},
 	"Wk": {f1: 0.4, f2: 100, f3: 12.5, f4: 12.5, q4: 0.63, f5: 2.37, q5: 0.91, f6: 3.35, q6: 0.91, k: 1, use: "vertical whole-body vibration (ISO 2631-1)"},
 	"Wm": {f1: 0.7943, f2: 100, f3: 5.684, f4: 5.684, q4: 0.5, k: 1, use: "vibration in buildings (ISO 2631-2)"},
+}
+
+// isoTol is the tolerance table of one ISO 8041-1:2017 weighting: the
+// one-third-octave band numbers its design-goal table covers and the four
+// band numbers at which its tolerance changes. Band number n is the
+// exact base-10 frequency 10^(n/10) Hz (IEC 61260-1:2014 series, 1 Hz
+// reference), i.e. 1000 * 10^((n-30)/10) Hz.
+type isoTol struct {
+	lo, hi         int // first and last band of the curve's Annex B table
+	t1, t2, t3, t4 int // Table 4 tolerance transition frequencies ft1 ... ft4
+}
+
+// isoTolerance: ISO 8041-1:2017 Table 4 (transition frequencies ft1 ...
+// ft4, exact powers of 10^(1/10) Hz) and the band range of Annex B,
+// Tables B.1-B.9 (0.1 Hz to 400 Hz for most curves, 0.02 Hz to 2 Hz for Wf,
+// 0.8 Hz to 4 kHz for Wh), as transcribed in the open repository
+// jmrplens/phonometry, tests/reference_data/vibration.py
+// (ISO8041_1_TABLE4_TRANSITIONS, ISO8041_1_ANNEX_B_FACTORS; read at
+// commit 2bcd6ea6accf88bc5a0addaf5c68f44d4f44e60a). The transitions sit
+// an octave and a third above and below the band-limiting corners: an
+// octave and a third inside them for ft2 and ft3.
+var isoTolerance = map[string]isoTol{
+	"Wb": {-10, 26, -6, -2, 18, 22},
+	"Wc": {-10, 26, -6, -2, 18, 22},
+	"Wd": {-10, 26, -6, -2, 18, 22},
+	"We": {-10, 26, -6, -2, 18, 22},
+	"Wf": {-17, 3, -13, -9, -4, 0},
+	"Wh": {-1, 36, 6, 10, 29, 33},
+	"Wj": {-10, 26, -6, -2, 18, 22},
+	"Wk": {-10, 26, -6, -2, 18, 22},
+	"Wm": {-10, 26, -3, 1, 18, 22},
+}
+
+// ISO 8041-1:2017 Table 5, the tolerances of a frequency weighting, as
+// factors on the design goal (same transcription as isoTolerance,
+// ISO8041_1_TABLE5_TOLERANCES): +12 %/-11 % from ft2 to ft3, +26 %/-21 %
+// between ft1 and ft2 and between ft3 and ft4, and +26 %/-100 % (no lower
+// limit) at and beyond ft1 and ft4.
+const (
+	isoTolInnerUp   = 1.12
+	isoTolInnerDown = 0.89
+	isoTolOuterUp   = 1.26
+	isoTolOuterDown = 0.79
+)
+
+// limitsDB returns the Table 5 limits (dB, relative to the design
+// goal) of band n.
+func (t isoTol) limitsDB(n int) (lo, up float64) {
+	dB := func(f float64) float64 { return 20 * math.Log10(f) }
+	switch {
+	case n <= t.t1 || n >= t.t4:
+		return math.Inf(-1), dB(isoTolOuterUp)
+	case n < t.t2 || n > t.t3:
+		return dB(isoTolOuterDown), dB(isoTolOuterUp)
+	default:
+		return dB(isoTolInnerDown), dB(isoTolInnerUp)
+	}
+}
+
+// thirdOctaveLabel is the nominal frequency of band n (10^(n/10) Hz):
+// the IEC 61260-1 nominal mantissas 1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5,
+// 6.3, 8 times a power of ten, in kHz ("1.25k") from 1 kHz up.
+func thirdOctaveLabel(n int) string {
+	mant := []string{"1", "1.25", "1.6", "2", "2.5", "3.15", "4", "5", "6.3", "8"}
+	i := ((n % 10) + 10) % 10
+	dec := (n - i) / 10 // power of ten
+	m := mant[i]
+	suffix := ""
+	if dec >= 3 {
+		dec -= 3
+		suffix = "k"
+	}
+	// Shift the decimal point of m by dec places.
+	intPart, frac := m, ""
+	if j := strings.IndexByte(m, '.'); j >= 0 {
+		intPart, frac = m[:j], m[j+1:]
+	}
+	digits := intPart + frac
+	point := len(intPart) + dec
+	for point > len(digits) {
+		digits += "0"
+	}
+	for point <= 0 {
+		digits = "0" + digits
+		point++
+	}
+	out := digits[:point]
+	if rest := strings.TrimRight(digits[point:], "0"); rest != "" {
+		out += "." + rest
+	}
+	return out + suffix
 }

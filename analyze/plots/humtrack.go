@@ -3,6 +3,7 @@ package plots
 import (
 	"fmt"
 	"io"
+	"math"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -43,13 +44,7 @@ func HumTrack(w io.Writer, format string, s HumTrackPlot) error {
 	}
 	top := newPanel("fundamental of the hum", "time (s)", "Hz")
 	addCurve(top, s.TimesS, s.Hz, draw.LineStyle{Color: curveColor, Width: vg.Points(1.2)})
-	low := newPanel("hum at the tracked harmonics", "time (s)", "level (dBFS)")
-	if l := addCurve(low, s.BlockTimesS, s.InDB, draw.LineStyle{Color: secondColor, Width: vg.Points(1.2)}); l != nil {
-		low.Legend.Add("input", l)
-	}
-	if l := addCurve(low, s.BlockTimesS, s.OutDB, draw.LineStyle{Color: curveColor, Width: vg.Points(1.2)}); l != nil {
-		low.Legend.Add("output", l)
-	}
+	low := levelPanel(s)
 	head := []string{s.Title}
 	if s.Note != "" {
 		head = append(head, s.Note)
@@ -63,3 +58,34 @@ func HumTrack(w io.Writer, format string, s HumTrackPlot) error {
 		low.Draw(cs[1][0])
 	})
 }
+
+// levelPanel draws the hum level of input and output in the colours of
+// the before/after spectra (input blue, output orange), with the level
+// axis padded beyond the data so that a steady level is not drawn on the
+// panel's frame.
+func levelPanel(s HumTrackPlot) *plot.Plot {
+	low := newPanel("hum at the tracked harmonics", "time (s)", "level (dBFS)")
+	if l := addCurve(low, s.BlockTimesS, s.InDB, draw.LineStyle{Color: curveColor, Width: vg.Points(1.2)}); l != nil {
+		low.Legend.Add("input", l)
+	}
+	if l := addCurve(low, s.BlockTimesS, s.OutDB, draw.LineStyle{Color: secondColor, Width: vg.Points(1.2)}); l != nil {
+		low.Legend.Add("output", l)
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, v := range append(append([]float64(nil), s.InDB...), s.OutDB...) {
+		if !math.IsInf(v, 0) && !math.IsNaN(v) {
+			lo, hi = math.Min(lo, v), math.Max(hi, v)
+		}
+	}
+	if lo <= hi {
+		low.Y.Min, low.Y.Max = lo-levelPadDB, hi+levelLegendPadDB
+	}
+	return low
+}
+
+// levelPadDB is the room left below the hum levels, levelLegendPadDB above
+// them, where the legend sits (chosen for a readable plot, not measured).
+const (
+	levelPadDB       = 5
+	levelLegendPadDB = 15
+)

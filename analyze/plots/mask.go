@@ -73,6 +73,9 @@ func addMasks(p *plot.Plot, f *design.Filter, floor, ceil float64) {
 
 // maskLegend names the band of a stage's mask.
 func maskLegend(d design.Designed) string {
+	if d.Weighting != nil && d.Weighting.Standard == design.StandardISO8041 {
+		return "tolerance limits, " + d.Weighting.Standard + " Table 5"
+	}
 	if d.Weighting != nil {
 		return "class 1 limits, " + d.Weighting.Standard + " Table 3"
 	}

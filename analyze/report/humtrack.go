@@ -6,6 +6,8 @@ import (
 	"math"
 	"math/cmplx"
 	"path/filepath"
+	"strconv"
+	"strings"
 
 	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/analyze/plots"
@@ -115,7 +117,12 @@ func humTrackLevels(in, out string, spec design.Spec, opt Options) (plots.HumTra
 		hp.OutDB = append(hp.OutDB, level(y, b))
 	}
 	lo, hi := tr.Range()
-	note := fmt.Sprintf("Track of the input measured again for the report (%.3f-%.3f Hz, harmonics %v); hum level in 1 s blocks at those harmonics along the track, input and output.", lo, hi, tr.Harmonics)
+	harm := make([]string, len(tr.Harmonics))
+	for i, h := range tr.Harmonics {
+		harm[i] = strconv.Itoa(h)
+	}
+	// "harmonics 1,2,3", as survey prints them, never a Go slice.
+	note := fmt.Sprintf("Track of the input measured again for the report (%.3f-%.3f Hz, harmonics %s); hum level in 1 s blocks at those harmonics along the track, input and output.", lo, hi, strings.Join(harm, ","))
 	if cut {
 		note += fmt.Sprintf(" Only the first %g s were analysed.", opt.maxSeconds())
 	}

@@ -3,6 +3,7 @@ package report
 import (
 	"math"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/wavsieve/wavsieve/design"
@@ -47,6 +48,11 @@ func TestHumTrackLevels(t *testing.T) {
 		}
 	}
 	t.Logf("hum in %.1f dBFS, out %.1f dBFS", hp.InDB, hp.OutDB)
+	// The note lists the harmonics as survey does ("1,2,3"), not as a Go
+	// slice ("[1 2 3]").
+	if !strings.Contains(hp.Note, "harmonics 1,2") || strings.Contains(hp.Note, "[") {
+		t.Errorf("note %q: want the harmonics as \"1,2,...\"", hp.Note)
+	}
 	if _, _, err := humTrackPlot(filepath.Join(dir, "in.wav"), filepath.Join(dir, "in-out.wav"), spec, Options{}); err != nil {
 		t.Errorf("plot: %v", err)
 	}

@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"encoding/xml"
 	"math"
-	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -120,7 +119,6 @@ func TestBadDocuments(t *testing.T) {
 	if _, err := FromApply([]byte(`{"x":1}`), "", Options{}); err == nil || !strings.Contains(err.Error(), "manifest") {
 		t.Errorf("no files: %v", err)
 	}
-	_ = os.Remove
 }
 
 // TestDrawOnceAndTables: two files at one rate with one spec draw their

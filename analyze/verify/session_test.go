@@ -100,7 +100,10 @@ func checkAt(t *testing.T, r *Result, kind string, hz float64) Check {
 // TestKnownFilterAgainstSciPy filters long white noise (float64 output)
 // with each filter of testdata/verify/verify_refs.json and requires the
 // SciPy sosfreqz value at each edge inside the interval of the check at
-// that edge, and every check that passes to have a margin >= 0.
+// that edge, and every check that passes to have a margin >= 0. The
+// references are scipy.signal.ellip designs from the same tolerances and
+// their sosfreqz at the edges (SciPy 1.10.1, NumPy 1.24.2, Debian's
+// python3-scipy; testdata/verify/gen_verify_refs.py).
 func TestKnownFilterAgainstSciPy(t *testing.T) {
 	b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "verify", "verify_refs.json"))
 	if err != nil {
@@ -108,25 +111,30 @@ func TestKnownFilterAgainstSciPy(t *testing.T) {
 	}
 	var refs struct {
 		Cases []struct {
-			Name     string    `json:"name"`
-			Rate     float64   `json:"sample_rate_hz"`
-			Response string    `json:"response"`
-			Edges    []float64 `json:"edges_hz"`
-			DB       []float64 `json:"sosfreqz_db"`
+			Name          string    `json:"name"`
+			Rate          float64   `json:"sample_rate_hz"`
+			Response      string    `json:"response"`
+			PassbandHz    float64   `json:"passband_hz"`
+			StopbandHz    float64   `json:"stopband_hz"`
+			RippleDB      float64   `json:"ripple_db"`
+			AttenuationDB float64   `json:"attenuation_db"`
+			Edges         []float64 `json:"edges_hz"`
+			DB            []float64 `json:"sosfreqz_db"`
 		} `json:"cases"`
 	}
 	if err := json.Unmarshal(b, &refs); err != nil {
 		t.Fatal(err)
 	}
-	var raw struct {
-		Cases []map[string]any `json:"cases"`
+	if len(refs.Cases) == 0 {
+		t.Fatal("verify_refs.json holds no cases")
 	}
-	json.Unmarshal(b, &raw)
 	for i, c := range refs.Cases {
 		t.Run(c.Name, func(t *testing.T) {
-			m := raw.Cases[i]
-			st := design.Stage{Family: design.Elliptic, Response: c.Response, PassbandHz: design.Edges{m["passband_hz"].(float64)},
-				StopbandHz: design.Edges{m["stopband_hz"].(float64)}, RippleDB: m["ripple_db"].(float64), AttenuationDB: m["attenuation_db"].(float64)}
+			if len(c.Edges) != 2 || len(c.DB) != 2 {
+				t.Fatalf("case %s: %d edges and %d values, want 2 of each", c.Name, len(c.Edges), len(c.DB))
+			}
+			st := design.Stage{Family: design.Elliptic, Response: c.Response, PassbandHz: design.Edges{c.PassbandHz},
+				StopbandHz: design.Edges{c.StopbandHz}, RippleDB: c.RippleDB, AttenuationDB: c.AttenuationDB}
 			f := mustDesign(t, design.Spec{Stages: []design.Stage{st}}, c.Rate)
 			x := noise(1<<20, 0.1, uint64(i+1))
 			r := measure(t, f, x, filterWith(t, f, x), Options{})
@@ -243,7 +251,7 @@ func TestNoContentBelow900Hz(t *testing.T) {
 	}
 	if below == 0 || r.Verdict != Inconclusive {
 		logChecks(t, r)
-		t.Fatalf("%d checks below 100 Hz; verdict %s, want inconclusive", below, r.Verdict)
+		t.Fatalf("%d checks below 900 Hz; verdict %s, want inconclusive", below, r.Verdict)
 	}
 }
 
@@ -259,10 +267,18 @@ func TestToneProbe(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
+		compared := 0
 		for _, c := range r.Checks {
-			if c.MeasuredDB != nil && *c.DesignedDB > -100 && math.Abs(*c.MeasuredDB-*c.DesignedDB) > toneTolDB {
-				t.Errorf("%s at %g Hz: measured %.4f, designed %.4f", c.Kind, c.FrequencyHz, *c.MeasuredDB, *c.DesignedDB)
+			if c.MeasuredDB != nil && *c.DesignedDB > -100 {
+				compared++
+				if math.Abs(*c.MeasuredDB-*c.DesignedDB) > toneTolDB {
+					t.Errorf("%s at %g Hz: measured %.4f, designed %.4f", c.Kind, c.FrequencyHz, *c.MeasuredDB, *c.DesignedDB)
+				}
 			}
+		}
+		if compared == 0 {
+			logChecks(t, r)
+			t.Error("no check measured where the design is above -100 dB")
 		}
 		// An elliptic stopband's peaks sit at the attenuation asked: read
 		// there, they pass with a margin of 0 or more, never fail by a

@@ -79,7 +79,7 @@ Examples:
       --ripple 0.1 --attenuation 80 --zero-phase --sample-format float32 \
       --output out/logger-lp.wav logger.wav
 
-  # A-weight a folder of 48 kHz recordings (each file at its own rate)
+  # A-weight a folder of recordings, each file designed at its own rate
   wavsieve apply --weighting A --output out/a-weighted recordings/
 
   # see what would be designed for each file, writing nothing
@@ -343,7 +343,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		switch r.Status {
 		case process.StatusFailed:
 			failed++
-			fmt.Fprintf(stderr, "wavsieve apply: %s\n", r.Error)
+			fmt.Fprintf(stderr, "wavsieve apply: %s\n", userMessage(r.Error))
 			if h := failureHint(r.Err); h != "" {
 				fmt.Fprintf(stderr, "hint: %s\n", h)
 			}

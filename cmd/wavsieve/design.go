@@ -121,13 +121,8 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	asJSON := fs.Bool("json", false, "print the design as one JSON document on stdout")
 	plot := fs.String("plot", "", "draw magnitude, phase, group delay and the pole/zero diagram to this `file` (.svg or .png)")
 	help := fs.BoolP("help", "h", false, "show this help")
-	if err := fs.Parse(args); err != nil {
-		return report(stderr, "design", usagef("%v", err), "")
-	}
-	if *help {
-		fmt.Fprint(stdout, designHelp)
-		fmt.Fprint(stdout, fs.FlagUsages())
-		return exitOK
+	if code, done := parseOrHelp(fs, args, "design", designHelp, help, stdout, stderr); done {
+		return code
 	}
 	if fs.NArg() > 0 {
 		return report(stderr, "design", usagef("unexpected argument %q", fs.Arg(0)), "")

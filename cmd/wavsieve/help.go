@@ -281,7 +281,8 @@ wavsieve bands --json
   {"version", "caution",
    "files": [{"path", "sample_rate_hz", "fraction", "frames", "duration_s",
               "reference", "weighting",
-              "channels": [{"channel", "overall_db", "samples_at_full_scale",
+              "channels": [{"channel", "overall_db",
+                            "samples_at_full_scale" (when any),
                             "bands": [{"midband_hz", "exact_midband_hz",
                                        "level_db"}]}],
               "intervals": [{"start_s", "end_s", "channels": [as above]}],
@@ -315,13 +316,14 @@ wavsieve verify --json
 
 const exitHelp = `Exit codes
 
-  0  done: every file was done or skipped (apply), surveyed (survey);
+  0  done: every file was done or skipped (apply), surveyed (survey),
+     measured (bands); every input done exactly once (gather);
      (verify) pass: every edge, cutoff, notch and mask check was measured
      and passed
   1  failed: a file could not be read, designed or written, a spec is
-     invalid, or (verify, apply --verify) a check failed; in a batch the
-     other files are still done, and the summary and the manifest say which
-     failed
+     invalid, or (verify, apply --verify) a check failed; (gather) an
+     input missing or done twice; in a batch the other files are still
+     done, and the summary and the manifest say which failed
   2  usage error: an unknown command or flag, a missing argument, or a flag
      value that cannot work (such as --cutoff at or above the Nyquist
      frequency of --rate); nothing was done

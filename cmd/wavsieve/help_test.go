@@ -173,3 +173,17 @@ func TestFlagPlaceholders(t *testing.T) {
 		})
 	}
 }
+
+// TestHelpExitCodesEveryCommand: the exit-code topic says what 0 and 1
+// mean for bands and gather too, not only for apply, survey and verify.
+func TestHelpExitCodesEveryCommand(t *testing.T) {
+	code, out, errs := runCmd(t, "help", "exit-codes")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"measured (bands)", "every input done exactly once (gather)", "(gather) an\n     input missing or done twice"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("exit-codes help lacks %q", want)
+		}
+	}
+}

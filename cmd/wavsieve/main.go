@@ -107,10 +107,10 @@ func usagef(format string, a ...any) error { return usageError{fmt.Sprintf(forma
 func report(stderr io.Writer, cmd string, err error, hint string) int {
 	var ue usageError
 	if errors.As(err, &ue) {
-		fmt.Fprintf(stderr, "wavsieve %s: %v\nRun 'wavsieve %s --help' for usage.\n", cmd, err, cmd)
+		fmt.Fprintf(stderr, "wavsieve %s: %s\nRun 'wavsieve %s --help' for usage.\n", cmd, userMessage(err.Error()), cmd)
 		return exitUsage
 	}
-	fmt.Fprintf(stderr, "wavsieve %s: %v\n", cmd, err)
+	fmt.Fprintf(stderr, "wavsieve %s: %s\n", cmd, userMessage(err.Error()))
 	if hint != "" {
 		fmt.Fprintf(stderr, "hint: %s\n", hint)
 	}

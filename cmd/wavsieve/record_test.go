@@ -56,8 +56,11 @@ func TestApplyConcurrentRunsOneRecord(t *testing.T) {
 		if code != exitOK {
 			t.Fatalf("remake %s: %s", f.Input, stderr)
 		}
-		a, _ := os.ReadFile(f.Output)
-		b, _ := os.ReadFile(again)
+		a, errA := os.ReadFile(f.Output)
+		b, errB := os.ReadFile(again)
+		if errA != nil || errB != nil {
+			t.Fatalf("%s: %v, %v", f.Output, errA, errB)
+		}
 		if !bytes.Equal(a, b) {
 			t.Errorf("%s: the record's dither seed %d does not remake the file on disk", f.Output, f.DitherSeed)
 		}

@@ -53,13 +53,8 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	output := fs.StringP("output", "o", "", "the HTML `file` to write (- for standard output)")
 	maxS := fs.Float64("max-seconds", 120, "analyse at most this many `seconds` of each file")
 	help := fs.BoolP("help", "h", false, "show this help")
-	if err := fs.Parse(args); err != nil {
-		return report(stderr, "report", usagef("%v", err), "")
-	}
-	if *help {
-		fmt.Fprint(stdout, reportHelp)
-		fmt.Fprint(stdout, fs.FlagUsages())
-		return exitOK
+	if code, done := parseOrHelp(fs, args, "report", reportHelp, help, stdout, stderr); done {
+		return code
 	}
 	if len(*from) == 0 || *output == "" {
 		return report(stderr, "report", usagef("give --from and --output"), "")
@@ -100,7 +95,11 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if err := writeFileAtomic(*output, b.Bytes()); err != nil {
 		return report(stderr, "report", err, "")
 	}
-	fmt.Fprintf(stderr, "wavsieve report: wrote %s (%d files, %d KiB)\n", *output, len(r.Files), b.Len()/1024)
+	files := "files"
+	if len(r.Files) == 1 {
+		files = "file"
+	}
+	fmt.Fprintf(stderr, "wavsieve report: wrote %s (%d %s, %d KiB)\n", *output, len(r.Files), files, b.Len()/1024)
 	return exitOK
 }
 

@@ -209,11 +209,17 @@ var specKeyFlags = map[string]string{
 // valueError restates a design error about one value in the words the
 // user gave it in: for a spec given by flags, as a usage error naming
 // the flag (exit 2); for a spec file, naming the file and the key. Other
-// errors pass unchanged.
+// errors keep their type (errors.Is and errors.As still see it) but are
+// shown without the library's "design: " prefix, after the spec file's
+// name when there is one.
 func (s *specFlags) valueError(err error) error {
 	ve, ok := design.ValueOf(err)
 	if !ok {
-		return err
+		msg := strings.TrimPrefix(err.Error(), "design: ")
+		if s.file != "" {
+			msg = s.file + ": " + msg
+		}
+		return restatedError{msg: msg, err: err}
 	}
 	if s.file != "" {
 		return fmt.Errorf("%s: %s value %s %s", s.file, ve.Key, ve.Quantity(), ve.Detail)
@@ -223,3 +229,12 @@ func (s *specFlags) valueError(err error) error {
 	}
 	return err
 }
+
+// restatedError shows msg for err and unwraps to it.
+type restatedError struct {
+	msg string
+	err error
+}
+
+func (e restatedError) Error() string { return e.msg }
+func (e restatedError) Unwrap() error { return e.err }

@@ -92,13 +92,8 @@ func runSpectrum(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	asJSON := fs.Bool("json", false, "print one JSON document on stdout instead of CSV")
 	plot := fs.String("plot", "", "draw the spectra to this `file` (.svg or .png)")
 	help := fs.BoolP("help", "h", false, "show this help")
-	if err := fs.Parse(args); err != nil {
-		return report(stderr, "spectrum", usagef("%v", err), "")
-	}
-	if *help {
-		fmt.Fprint(stdout, spectrumHelp)
-		fmt.Fprint(stdout, fs.FlagUsages())
-		return exitOK
+	if code, done := parseOrHelp(fs, args, "spectrum", spectrumHelp, help, stdout, stderr); done {
+		return code
 	}
 	if fs.NArg() < 1 || fs.NArg() > 2 {
 		return report(stderr, "spectrum", usagef("give one WAV file, or two to compare (got %d)", fs.NArg()), "")

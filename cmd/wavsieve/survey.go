@@ -175,7 +175,7 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	for _, f := range doc.Files {
 		if f.Error != "" {
 			failed++
-			fmt.Fprintf(stderr, "wavsieve survey: %s\n", f.Error)
+			fmt.Fprintf(stderr, "wavsieve survey: %s\n", userMessage(f.Error))
 		}
 	}
 	if *writeSpec != "" {

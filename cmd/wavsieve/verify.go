@@ -326,7 +326,9 @@ func readManifest(name string) ([]manifestPair, error) {
 // format (or --sample-format, or the input's).
 func runProbe(ctx context.Context, spec design.Spec, in, out string, o verifyOpts, only []int, vo verify.Options) (*verify.Result, error) {
 	inF := wavio.Format{SampleRate: o.rate, Channels: 1, Bits: 24, Encoding: wavio.PCM}
-	name := fmt.Sprintf("probe at %d Hz", o.rate)
+	// Named by the format it stands for: "in the format of 48000 Hz, 1 ch,
+	// 24-bit pcm (--rate)".
+	name := fmt.Sprintf("%d Hz, 1 ch, 24-bit pcm (--rate)", o.rate)
 	if in != "" {
 		r, err := wavio.Open(in, nil)
 		if err != nil {

@@ -58,3 +58,16 @@ func TestVerdictLineCount(t *testing.T) {
 		})
 	}
 }
+
+// TestProbeAtRateHeading: a probe given --rate and no --input is named by
+// the format it stands for, not as "the format of probe at 8000 Hz".
+func TestProbeAtRateHeading(t *testing.T) {
+	code, out, errs := runCmd(t, append([]string{"verify", "--probe", "--rate", "8000"}, lowpassSpec...)...)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	want := "Verify tone probe in the format of 8000 Hz, 1 ch, 24-bit pcm (--rate): a steady tone at each check frequency"
+	if !strings.Contains(out, want) {
+		t.Errorf("heading lacks %q:\n%s", want, out)
+	}
+}

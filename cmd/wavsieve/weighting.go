@@ -97,7 +97,22 @@ func printWeighting(w io.Writer, f *design.Filter, i int, st design.Designed) {
 		fmt.Fprintf(w, "  deviation from the analog definition: at most %.4f dB from %s to %s Hz (at %s Hz); a plain bilinear transform: %.4f dB\n",
 			info.AnalogDevDB, fmtHz(info.GoalLoHz), fmtHz(info.GoalHiHz), fmtHz(info.AnalogDevHz), info.PlainBilinearDevDB)
 	}
-	if len(st.Mask) > 0 {
+	if len(st.Mask) > 0 && info.Standard == design.StandardISO8041 {
+		one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
+		within := 0
+		for _, m := range st.Mask {
+			if m.Within(one.MagnitudeDB(m.FrequencyHz)) {
+				within++
+			}
+		}
+		fmt.Fprintf(w, "  tolerance (%s Tables 4 and 5, goal: the analog definition): %d of %d one-third-octave rows below %s Hz (0.45 of the rate) within\n",
+			info.Standard, within, len(st.Mask), fmtHz(0.45*f.SampleRate))
+		fmt.Fprintf(w, "  %-8s %12s %9s %12s %16s\n", "nominal", "exact (Hz)", "goal dB", "designed dB", "limits")
+		for _, m := range st.Mask {
+			v, lo, ok := maskCells(one, m)
+			fmt.Fprintf(w, "  %-8s %12.4f %9.2f %12.3f %7s..%-7.1f %s\n", m.Label, m.FrequencyHz, m.TargetDB, v, lo, m.UpperDB, ok)
+		}
+	} else if len(st.Mask) > 0 {
 		fmt.Fprintf(w, "  deviation from %s Table 3: at most %.3f dB (the table is rounded to 0.1 dB)\n", info.Standard, info.TableDevDB)
 		switch info.Class {
 		case 1, 2:
@@ -115,8 +130,6 @@ func printWeighting(w io.Writer, f *design.Filter, i int, st design.Designed) {
 			v, lo, ok := maskCells(one, m)
 			fmt.Fprintf(w, "  %-8s %12.4f %9.1f %12.3f %7s..%-7.1f %s\n", m.Label, m.FrequencyHz, m.TargetDB, v, lo, m.UpperDB, ok)
 		}
-	} else if info.Standard == design.StandardISO8041 {
-		fmt.Fprintf(w, "  checked against its analog definition only: wavsieve carries no tolerance table for %s curves\n", info.Standard)
 	}
 	fmt.Fprintf(w, "  caution: %s\n", "weighted levels from a file are no sound level meter or vibration meter reading (see 'wavsieve help weighting')")
 }

@@ -73,7 +73,9 @@ func TestWeightingFlagChains(t *testing.T) {
 		t.Fatalf("exit %d, stdout %s, stderr %s", code, out, errs)
 	}
 	spec := filepath.Join(t.TempDir(), "hp.json")
-	os.WriteFile(spec, []byte(`{"family": "butterworth", "response": "highpass", "order": 2, "cutoff_hz": 0.3}`), 0o644)
+	if err := os.WriteFile(spec, []byte(`{"family": "butterworth", "response": "highpass", "order": 2, "cutoff_hz": 0.3}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	code, out, errs = runCmd(t, "design", "--spec", spec, "--weighting", "Wk", "--rate", "800")
 	if code != exitOK || !strings.Contains(out, "Stage 2: weighting Wk (ISO 8041-1:2017)") {
 		t.Fatalf("exit %d, stdout %s, stderr %s", code, out, errs)
@@ -129,7 +131,9 @@ func TestApplyWeighting(t *testing.T) {
 		buf[2*i] = 0.5 * math.Sin(2*math.Pi*1000*tt)
 		buf[2*i+1] = 0.5 * math.Sin(2*math.Pi*100*tt)
 	}
-	w.WriteFrames(buf)
+	if err := w.WriteFrames(buf); err != nil {
+		t.Fatal(err)
+	}
 	if err := w.Close(); err != nil {
 		t.Fatal(err)
 	}
@@ -170,5 +174,40 @@ func TestDesignWeightingPlot(t *testing.T) {
 	b, err := os.ReadFile(name)
 	if err != nil || !strings.Contains(string(b), "class 1 limits, IEC 61672-1:2013 Table 3") {
 		t.Errorf("plot lacks the tolerance band's legend (%v)", err)
+	}
+}
+
+// TestVerifyISOWeighting: verify checks an ISO 8041-1 curve at the rows
+// of its tolerance table (ISO 8041-1:2017 Tables 4 and 5, see
+// design/weighting_data.go), and the design report shows that table
+// rather than IEC 61672-1 classes.
+func TestVerifyISOWeighting(t *testing.T) {
+	code, out, errs := runCmd(t, "verify", "--weighting", "Wk", "--probe", "--rate", "1000", "--json")
+	if code != exitOK {
+		t.Fatalf("exit %d, stderr %s\n%s", code, errs, out)
+	}
+	v := decodeVerify(t, out)
+	if v.Verdict != "pass" {
+		t.Errorf("verdict %q", v.Verdict)
+	}
+	masks := 0
+	for _, c := range v.Checks {
+		var kind, verdict string
+		json.Unmarshal(c["kind"], &kind)
+		json.Unmarshal(c["verdict"], &verdict)
+		if kind == "mask" {
+			masks++
+			if verdict != "pass" {
+				t.Errorf("mask check %s: %s", c["label"], verdict)
+			}
+		}
+	}
+	// Wk's Annex B table runs 0.1 Hz ... 400 Hz: 37 bands, all below 450 Hz.
+	if masks != 37 {
+		t.Errorf("%d mask checks, want 37", masks)
+	}
+	code, out, errs = runCmd(t, "design", "--weighting", "Wk", "--rate", "1000")
+	if code != exitOK || !strings.Contains(out, "ISO 8041-1:2017 Tables 4 and 5") || !strings.Contains(out, "37 of 37") || strings.Contains(out, "class 1") {
+		t.Errorf("exit %d, stderr %s\n%s", code, errs, out)
 	}
 }

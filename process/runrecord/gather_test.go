@@ -101,9 +101,14 @@ func TestGather(t *testing.T) {
 		writeShare(t, dir, 1, 2, inputs, nil)
 		writeShare(t, dir, 2, 2, inputs, nil)
 		// Share 2's record also claims a, which is share 1's.
-		r, _ := Read(Base(dir, 2, 2) + ".json")
+		r, err := Read(Base(dir, 2, 2) + ".json")
+		if err != nil {
+			t.Fatal(err)
+		}
 		r.Files = append(r.Files, row(process.FileResult{Input: "a.wav", Output: filepath.Join(dir, "a.wav"), Status: StatusDone}))
-		r.Write(Base(dir, 2, 2))
+		if err := r.Write(Base(dir, 2, 2)); err != nil {
+			t.Fatal(err)
+		}
 		g, err := Gather(context.Background(), dir)
 		if err != nil {
 			t.Fatal(err)

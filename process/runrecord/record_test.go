@@ -52,9 +52,14 @@ func TestRoundTrip(t *testing.T) {
 			}
 		})
 	}
-	b, _ := os.ReadFile(base + ".json")
+	b, err := os.ReadFile(base + ".json")
+	if err != nil {
+		t.Fatal(err)
+	}
 	var head map[string]any
-	json.Unmarshal(b, &head)
+	if err := json.Unmarshal(b, &head); err != nil {
+		t.Fatal(err)
+	}
 	if head["kind"] != Kind || head["version"] == "" || head["version"] == nil {
 		t.Errorf("kind and version: %v %v", head["kind"], head["version"])
 	}
