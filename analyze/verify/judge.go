@@ -36,7 +36,11 @@ func (s *Session) judge(pi, ci, channel int) Check {
 		k := s.trackOf(channel - 1)
 		c.FrequencyHz = pl.harm * s.tmean[k]
 		c.TrackRangeHz = []float64{s.tlo[k], s.thi[k]}
-		c.Reason += fmt.Sprintf(" (read along the hum's track as harmonic %g of a fundamental from %.3f to %.3f Hz, at %.6g Hz on average; nominal centre %.6g Hz; the limit of %.0f dB is this program's own bound for a tracking notch)", pl.harm, s.tlo[k], s.thi[k], c.FrequencyHz, pl.p.FrequencyHz, TrackDepthDB)
+		read := "read along the hum's track"
+		if pl.seg == 0 {
+			read = "to be read along the hum's track"
+		}
+		c.Reason += fmt.Sprintf(" (%s as harmonic %g of a fundamental from %.3f to %.3f Hz, at %.6g Hz on average; nominal centre %.6g Hz; the limit of %.0f dB is wavsieve's own bound for a tracking notch)", read, pl.harm, s.tlo[k], s.thi[k], c.FrequencyHz, pl.p.FrequencyHz, TrackDepthDB)
 	}
 	return c
 }

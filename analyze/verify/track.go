@@ -96,7 +96,6 @@ func (s *Session) planTracked(p Point, usable int64) plan {
 	hi := pl.harm * maxOf(s.thi)
 	room := math.Min(math.Min(pl.harm*minOf(s.tlo), s.fs/2-hi), minOf(s.tlo))
 	if !(room > 0) {
-		pl.harm = 0
 		pl.reason = fmt.Sprintf("the track takes this harmonic to %.6g Hz, at or past the Nyquist frequency", hi)
 		return pl
 	}
@@ -108,9 +107,7 @@ func (s *Session) planTracked(p Point, usable int64) plan {
 		seg = s.o.Segment
 	}
 	if int64(seg)*(MinSegments+1)/2 > usable {
-		harm := pl.harm
-		pl.harm = 0
-		pl.reason = fmt.Sprintf("too short to read harmonic %g along the track: %d-sample segments need %d frames (%.3g s), and the run has %d", harm, seg, s.framesFor(seg), float64(s.framesFor(seg))/s.fs, s.frames)
+		pl.reason = fmt.Sprintf("too short to read harmonic %g along the track: %d-sample segments need %d frames (%.3g s), and the run has %d", pl.harm, seg, s.framesFor(seg), float64(s.framesFor(seg))/s.fs, s.frames)
 		return pl
 	}
 	pl.seg = seg

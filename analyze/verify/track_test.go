@@ -80,6 +80,8 @@ func TestTrackedNotchAlongTrack(t *testing.T) {
 				t.Logf("%.3f Hz %s measured %.1f dB range %v: %s", c.FrequencyHz, c.Verdict, m, c.TrackRangeHz, c.Reason)
 				if len(c.TrackRangeHz) != 2 || c.TrackRangeHz[1]-c.TrackRangeHz[0] < 0.5 {
 					t.Errorf("%.3f Hz: track range %v does not show the 1 Hz move", c.FrequencyHz, c.TrackRangeHz)
+				} else if k := math.Round(c.FrequencyHz / 50); !(c.FrequencyHz >= k*c.TrackRangeHz[0] && c.FrequencyHz <= k*c.TrackRangeHz[1]) {
+					t.Errorf("%.3f Hz: not harmonic %g of the track's range %v", c.FrequencyHz, k, c.TrackRangeHz)
 				}
 				if tc.tracking {
 					if c.Verdict == Fail {

@@ -421,7 +421,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 		if c.Label != "" && len(c.Kind)+1+len(c.Label) > 13 {
 			fmt.Fprintf(w, "        %s\n", c.Label)
 		}
-		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1)) {
+		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1) || len(c.TrackRangeHz) > 0) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}
 	}
