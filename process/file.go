@@ -74,7 +74,14 @@ type FileJob struct {
 	// track per channel instead of one shared by all.
 	NewTracker      NewHumTracker
 	TrackPerChannel bool
+
+	measured []FrequencyTrack // the track of this run, for Observe
 }
+
+// MeasuredTracks returns the hum's track(s) a run of a spec with a
+// tracking notch stage measured and filtered along, for Observe; nil
+// without one.
+func (j *FileJob) MeasuredTracks() []FrequencyTrack { return j.measured }
 
 // StageSummary is what a manifest records of one designed stage.
 type StageSummary struct {
@@ -252,6 +259,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 			return res, fmt.Errorf("%s: tracking the hum: %w (wavsieve survey shows what hum the file holds; without tracking a fixed notch runs)", job.Input, err)
 		}
 		res.TrackRangeHz = []float64{trk.lo, trk.hi}
+		job.measured = trk.tracks
 	}
 	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()

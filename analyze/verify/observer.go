@@ -1,7 +1,6 @@
 package verify
 
 import (
-	"context"
 	"fmt"
 	"sync"
 
@@ -36,16 +35,11 @@ func NewObserver(o Options) *Observer {
 func (ob *Observer) Observe(job *process.FileJob, fi wavio.Format, frames int64, f *design.Filter) func(in, out []float64) error {
 	o := ob.o
 	o.In, o.Out = fi, wavio.Format{}
-	var err error
-	if o.Tracks == nil && job.NewTracker != nil {
-		// The run measured the same track; measuring it again keeps
-		// process's interface as it is, at the cost of one more read.
-		o.Tracks, err = process.MeasureTrack(context.Background(), *job, f)
+	if o.Tracks == nil {
+		// A tracking notch is read along the track the run filtered with.
+		o.Tracks = job.MeasuredTracks()
 	}
-	var s *Session
-	if err == nil {
-		s, err = NewSession(f, nil, fi.Channels, frames, o)
-	}
+	s, err := NewSession(f, nil, fi.Channels, frames, o)
 	if err != nil {
 		err = fmt.Errorf("%s: %w", job.Input, err)
 	}

@@ -31,9 +31,10 @@ type Options struct {
 	MaxSegments int
 	// Tracks is the hum's track of a run with a tracking notch stage
 	// (process.MeasureTrack: one shared by all channels, or one per
-	// channel); its notch centres are read along it. Files measures it
-	// with NewTracker and TrackPerChannel when Tracks is nil; without
-	// either the centres come out unmeasurable.
+	// channel); its notch centres are read along it. When Tracks is nil,
+	// Files measures it with NewTracker and TrackPerChannel, and the
+	// Observer takes the run's own (process.FileJob.MeasuredTracks);
+	// without a track the centres come out unmeasurable.
 	Tracks          []process.FrequencyTrack
 	NewTracker      process.NewHumTracker
 	TrackPerChannel bool
