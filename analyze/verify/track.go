@@ -90,7 +90,7 @@ func (s *Session) planTracked(p Point, usable int64) plan {
 	pl.lo, pl.hi = math.Inf(-1), pl.designed
 	if len(s.tracks) == 0 {
 		pl.harm = 0
-		pl.reason = "the hum's track was not measured (no tracker given), so this tracking notch cannot be read along it"
+		pl.reason = "the hum's track was not measured (a probe has no hum, or no tracker was given), so this tracking notch cannot be read along it"
 		return pl
 	}
 	hi := pl.harm * maxOf(s.thi)
