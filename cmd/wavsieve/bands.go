@@ -310,7 +310,7 @@ func bandsCalibration(fullScale, sensitivity string, volts float64, units string
 		cal = analyze.FullScale
 	}
 	if err != nil {
-		return cal, usagef("%s", strings.TrimPrefix(err.Error(), "analyze: "))
+		return cal, usagef("%s", plainMessage(err))
 	}
 	return cal, nil
 }
@@ -349,7 +349,7 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 	if opt.weighting != "Z" {
 		wf, err := design.Design(design.Spec{Stages: []design.Stage{{Family: design.Weighting, Curve: opt.weighting}}}, bf.SampleRate)
 		if err != nil {
-			bf.Error = fmt.Sprintf("%s: %s-weighting: %v", path, opt.weighting, strings.TrimPrefix(err.Error(), "design: "))
+			bf.Error = fmt.Sprintf("%s: %s-weighting: %v", path, opt.weighting, plainMessage(err))
 			return bf
 		}
 		bo.Prefilter = wf.Sections()
@@ -363,9 +363,9 @@ func bandsOne(ctx context.Context, path string, opt bandsOptions, banks map[[2]i
 				bf.Error = fmt.Sprintf("%s: no 1/%d-octave band lies between --from and --to below the Nyquist frequency of this %d Hz file; widen the range", path, opt.fraction, f.SampleRate)
 			} else if errors.Is(err, design.ErrAboveNyquist) && opt.toHz > 0 {
 				// Name the flag that set the upper end of the range.
-				bf.Error = fmt.Sprintf("%s: %s (--to %g)", path, strings.TrimPrefix(err.Error(), "analyze: "), opt.toHz)
+				bf.Error = fmt.Sprintf("%s: %s (--to %g)", path, plainMessage(err), opt.toHz)
 			} else {
-				bf.Error = fmt.Sprintf("%s: %v", path, strings.TrimPrefix(strings.TrimPrefix(err.Error(), "analyze: "), "design: "))
+				bf.Error = fmt.Sprintf("%s: %v", path, plainMessage(err))
 			}
 			return bf
 		}

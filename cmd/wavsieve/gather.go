@@ -70,7 +70,7 @@ func runGather(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	g, err := runrecord.Gather(ctx, dir)
 	if err != nil {
 		// The library's "runrecord: " prefix means nothing to a user.
-		return report(stderr, "gather", errors.New(strings.TrimPrefix(err.Error(), "runrecord: ")), "")
+		return report(stderr, "gather", errors.New(plainMessage(err)), "")
 	}
 	base := runrecord.Base(dir, 0, 0)
 	if *asJSON {

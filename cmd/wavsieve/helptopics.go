@@ -28,7 +28,13 @@ A-weighting at 48 kHz is 2.7 dB low at 12.5 kHz). 'wavsieve design
 analog definition, the deviation from the standard's table, and the class
 whose acceptance limits the design meets (IEC 61672-1:2013 Table 3, at the
 exact frequency of every nominal frequency below 0.45 of the rate);
---plot draws the curve inside the class 1 band.
+--plot draws the curve inside the class 1 band. For the ISO curves the
+table is the tolerance of ISO 8041-1:2017 Tables 4 and 5 (+12 %/-11 %
+in the middle of the band, +26 %/-21 % near its limits, no lower limit
+beyond them) around the analog definition, at the exact frequency of
+every one-third-octave band of the curve's Annex B table (0.1 to 400 Hz;
+Wf 0.02 to 2 Hz; Wh 0.8 Hz to 4 kHz) below 0.45 of the rate. 'wavsieve
+verify' checks a weighting at the rows of that table.
 
 At 44.1 kHz and above, A and C stay within 0.01 dB of the analog
 definition from 10 Hz to 16 kHz; ISO curves stay within 0.01 dB from

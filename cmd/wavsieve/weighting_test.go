@@ -176,3 +176,38 @@ func TestDesignWeightingPlot(t *testing.T) {
 		t.Errorf("plot lacks the tolerance band's legend (%v)", err)
 	}
 }
+
+// TestVerifyISOWeighting: verify checks an ISO 8041-1 curve at the rows
+// of its tolerance table (ISO 8041-1:2017 Tables 4 and 5, see
+// design/weighting_data.go), and the design report shows that table
+// rather than IEC 61672-1 classes.
+func TestVerifyISOWeighting(t *testing.T) {
+	code, out, errs := runCmd(t, "verify", "--weighting", "Wk", "--probe", "--rate", "1000", "--json")
+	if code != exitOK {
+		t.Fatalf("exit %d, stderr %s\n%s", code, errs, out)
+	}
+	v := decodeVerify(t, out)
+	if v.Verdict != "pass" {
+		t.Errorf("verdict %q", v.Verdict)
+	}
+	masks := 0
+	for _, c := range v.Checks {
+		var kind, verdict string
+		json.Unmarshal(c["kind"], &kind)
+		json.Unmarshal(c["verdict"], &verdict)
+		if kind == "mask" {
+			masks++
+			if verdict != "pass" {
+				t.Errorf("mask check %s: %s", c["label"], verdict)
+			}
+		}
+	}
+	// Wk's Annex B table runs 0.1 Hz ... 400 Hz: 37 bands, all below 450 Hz.
+	if masks != 37 {
+		t.Errorf("%d mask checks, want 37", masks)
+	}
+	code, out, errs = runCmd(t, "design", "--weighting", "Wk", "--rate", "1000")
+	if code != exitOK || !strings.Contains(out, "ISO 8041-1:2017 Tables 4 and 5") || !strings.Contains(out, "37 of 37") || strings.Contains(out, "class 1") {
+		t.Errorf("exit %d, stderr %s\n%s", code, errs, out)
+	}
+}

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"strings"
 
 	"github.com/spf13/pflag"
 )
@@ -21,4 +22,23 @@ func parseOrHelp(fs *pflag.FlagSet, args []string, cmd, helpText string, help *b
 		return exitOK, true
 	}
 	return 0, false
+}
+
+// libraryPrefixes are the "pkg: " prefixes of the library's errors,
+// which mean nothing to a user of the command.
+var libraryPrefixes = []string{"analyze: ", "design: ", "process: ", "runrecord: ", "wavio: "}
+
+// plainMessage is err's message without the library's package prefixes
+// at its start.
+func plainMessage(err error) string {
+	msg := err.Error()
+	for again := true; again; {
+		again = false
+		for _, p := range libraryPrefixes {
+			if strings.HasPrefix(msg, p) {
+				msg, again = msg[len(p):], true
+			}
+		}
+	}
+	return msg
 }
