@@ -228,6 +228,11 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	}()
 	inF := r.Format()
 	res.SampleRate, res.Channels, res.Frames = inF.SampleRate, inF.Channels, r.Frames()
+	if c := r.ClaimedFrames(); c > r.Frames() && !job.AllowShort {
+		// Cut short on disk before this run: the same failure as a file
+		// that shrinks while it is read.
+		return res, &ShortInputError{Input: job.Input, Read: r.Frames(), Declared: c}
+	}
 	res.Format = inF.String()
 	res.DurationS = float64(res.Frames) / float64(inF.SampleRate)
 	filt, err := DesignContext(ctx, job.Spec, inF.SampleRate, job.Input)
