@@ -74,7 +74,14 @@ type FileJob struct {
 	// track per channel instead of one shared by all.
 	NewTracker      NewHumTracker
 	TrackPerChannel bool
+
+	measured []FrequencyTrack // the track of this run, for Observe
 }
+
+// MeasuredTracks returns the hum's track(s) a run of a spec with a
+// tracking notch stage measured and filtered along, for Observe; nil
+// without one.
+func (j *FileJob) MeasuredTracks() []FrequencyTrack { return j.measured }
 
 // StageSummary is what a manifest records of one designed stage.
 type StageSummary struct {
@@ -221,6 +228,11 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 	}()
 	inF := r.Format()
 	res.SampleRate, res.Channels, res.Frames = inF.SampleRate, inF.Channels, r.Frames()
+	if c := r.ClaimedFrames(); c > r.Frames() && !job.AllowShort {
+		// Cut short on disk before this run: the same failure as a file
+		// that shrinks while it is read.
+		return res, &ShortInputError{Input: job.Input, Read: r.Frames(), Declared: c}
+	}
 	res.Format = inF.String()
 	res.DurationS = float64(res.Frames) / float64(inF.SampleRate)
 	filt, err := DesignContext(ctx, job.Spec, inF.SampleRate, job.Input)
@@ -253,6 +265,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		}
 		res.TrackRangeHz = []float64{trk.lo, trk.hi}
 		res.Warnings = append(res.Warnings, trk.warnings(filt.Stages[tIdx].Spec.FundamentalHz)...)
+		job.measured = trk.tracks
 	}
 	outF := job.OutputFormat(inF)
 	res.OutFormat = outF.String()

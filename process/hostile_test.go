@@ -132,6 +132,41 @@ func TestPlanOutputInsideInput(t *testing.T) {
 	}
 }
 
+// TestShortOnDisk: a file cut short before the run (its data chunk
+// claims more than the file holds) fails like one that shrinks while it
+// is read, and AllowShort writes what it holds with a warning.
+func TestShortOnDisk(t *testing.T) {
+	for _, allow := range []bool{false, true} {
+		t.Run(map[bool]string{false: "fails", true: "allowed"}[allow], func(t *testing.T) {
+			dir := t.TempDir()
+			in := filepath.Join(dir, "in.wav")
+			out := filepath.Join(dir, "out.wav")
+			writeTone(t, in, 8000, 2, 2, pcm16, nil) // 16000 frames of 4 bytes
+			if err := os.Truncate(in, 44+4*4000); err != nil {
+				t.Fatal(err)
+			}
+			res, err := FilterFile(context.Background(), FileJob{Input: in, Output: out, Spec: hp100, AllowShort: allow})
+			var se *ShortInputError
+			if !allow {
+				// The header is longer than 44 bytes, so a few less than 4000.
+				if !errors.As(err, &se) || se.Declared != 16000 || se.Read > 4000 || se.Read < 3900 {
+					t.Fatalf("error %v, want a ShortInputError of about 4000 of 16000 frames", err)
+				}
+				if _, err := os.Stat(out); !errors.Is(err, os.ErrNotExist) {
+					t.Fatal("an output was written")
+				}
+				return
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if res.Frames > 4000 || res.Frames < 3900 || !strings.Contains(strings.Join(res.Warnings, "\n"), "claims") {
+				t.Fatalf("recorded %d frames, warnings %q", res.Frames, res.Warnings)
+			}
+		})
+	}
+}
+
 // TestSymlinkAtOutput: a symbolic link at the output name, to a file of
 // the same shape, is not counted as a complete output; the file fails
 // (refused at planning, or with a NotRegularError when the writer meets

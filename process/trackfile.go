@@ -290,3 +290,24 @@ func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) er
 	c.Process(buf, buf)
 	return nil
 }
+
+// MeasureTrack measures the hum's track of job.Input for f's tracking
+// notch stage as a run of job would (the same pass, with job.NewTracker
+// and job.TrackPerChannel): one track shared by all channels, or one per
+// channel. It returns nil and no error when f has no tracking stage.
+// verify reads a tracking notch along it.
+func MeasureTrack(ctx context.Context, job FileJob, f *design.Filter) ([]FrequencyTrack, error) {
+	idx, err := trackingStage(f)
+	if err != nil || idx < 0 {
+		return nil, err
+	}
+	block := job.BlockFrames
+	if block <= 0 {
+		block = 4096 // frames per read: small enough for many channels
+	}
+	t, err := trackPass(ctx, &job, f, idx, block)
+	if err != nil {
+		return nil, err
+	}
+	return t.tracks, nil
+}

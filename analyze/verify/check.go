@@ -347,6 +347,10 @@ type Check struct {
 	Segment      int      `json:"segment,omitempty"`
 	Averages     int      `json:"averages,omitempty"`
 	ResolutionHz *float64 `json:"resolution_hz,omitempty"`
+	// TrackRangeHz is, for a centre of a tracking notch read along the
+	// hum's track, the range of the track's fundamental over the frames
+	// read (FrequencyHz is then the track's mean times the harmonic).
+	TrackRangeHz []float64 `json:"track_range_hz,omitempty"`
 }
 
 // RunVerdict is the verdict over checks: Fail when any check failed, Pass

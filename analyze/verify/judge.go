@@ -20,6 +20,32 @@ const leakShare = 0.5
 // judge reads plan pi on checked channel ci (numbered channel) and gives
 // its verdict.
 func (s *Session) judge(pi, ci, channel int) Check {
+	c := s.judgeAt(pi, ci, channel)
+	if pl := &s.plans[pi]; pl.harm > 0 {
+		// The reading is the hum's only where the hum's line stands well
+		// above the sound around it: sound across the window's main lobe
+		// passes the narrow notch mostly unchanged and lifts the reading
+		// by up to its share of the input. A reading above the limit that
+		// this share alone can explain decides nothing.
+		if a := s.acc[pi][ci]; c.Verdict == Fail && a.xx > 0 {
+			if share := 20 * math.Log10(a.side/a.xx); share > TrackDepthDB-SeeBelowDB {
+				c.Verdict, c.MarginDB = Unmeasurable, nil
+				c.Reason = fmt.Sprintf("the reading (%.2f dB) lies above the limit, but the hum's line stands only %.1f dB above the input's sound beside it, which alone can lift the reading that far", *c.MeasuredDB, -dB10(a.side/a.xx))
+			}
+		}
+		k := s.trackOf(channel - 1)
+		c.FrequencyHz = pl.harm * s.tmean[k]
+		c.TrackRangeHz = []float64{s.tlo[k], s.thi[k]}
+		read := "read along the hum's track"
+		if pl.seg == 0 {
+			read = "to be read along the hum's track"
+		}
+		c.Reason += fmt.Sprintf(" (%s as harmonic %g of a fundamental from %.3f to %.3f Hz, at %.6g Hz on average; nominal centre %.6g Hz; the limit of %.0f dB is wavsieve's own bound for a tracking notch)", read, pl.harm, s.tlo[k], s.thi[k], c.FrequencyHz, pl.p.FrequencyHz, TrackDepthDB)
+	}
+	return c
+}
+
+func (s *Session) judgeAt(pi, ci, channel int) Check {
 	pl := &s.plans[pi]
 	p := pl.p
 	c := Check{Channel: channel, Stage: p.Stage + 1, Kind: p.Kind, FrequencyHz: p.FrequencyHz, Label: p.Label, Verdict: Unmeasurable}

@@ -35,6 +35,10 @@ func NewObserver(o Options) *Observer {
 func (ob *Observer) Observe(job *process.FileJob, fi wavio.Format, frames int64, f *design.Filter) func(in, out []float64) error {
 	o := ob.o
 	o.In, o.Out = fi, wavio.Format{}
+	if o.Tracks == nil {
+		// A tracking notch is read along the track the run filtered with.
+		o.Tracks = job.MeasuredTracks()
+	}
 	s, err := NewSession(f, nil, fi.Channels, frames, o)
 	if err != nil {
 		err = fmt.Errorf("%s: %w", job.Input, err)

@@ -3,6 +3,7 @@ package verify
 import (
 	"fmt"
 
+	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -28,6 +29,15 @@ type Options struct {
 	Tone bool
 	// MaxSegments caps the segments averaged per check (0: MaxSegments).
 	MaxSegments int
+	// Tracks is the hum's track of a run with a tracking notch stage
+	// (process.MeasureTrack: one shared by all channels, or one per
+	// channel); its notch centres are read along it. When Tracks is nil,
+	// Files measures it with NewTracker and TrackPerChannel, and the
+	// Observer takes the run's own (process.FileJob.MeasuredTracks);
+	// without a track the centres come out unmeasurable.
+	Tracks          []process.FrequencyTrack
+	NewTracker      process.NewHumTracker
+	TrackPerChannel bool
 }
 
 func (o Options) level() float64 {

@@ -49,6 +49,12 @@ func Files(ctx context.Context, spec design.Spec, in, out string, o Options) (*R
 		return nil, err
 	}
 	o.In, o.Out = fi, fo
+	if o.Tracks == nil && o.NewTracker != nil {
+		job := process.FileJob{Input: in, NewTracker: o.NewTracker, TrackPerChannel: o.TrackPerChannel}
+		if o.Tracks, err = process.MeasureTrack(ctx, job, f); err != nil {
+			return nil, fmt.Errorf("%s: tracking the hum: %w", in, err)
+		}
+	}
 	s, err := NewSession(f, nil, fi.Channels, ri.Frames(), o)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", in, err)

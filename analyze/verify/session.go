@@ -10,6 +10,7 @@ import (
 
 	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/design"
+	"github.com/wavsieve/wavsieve/process"
 	"github.com/wavsieve/wavsieve/process/wavio"
 )
 
@@ -99,22 +100,29 @@ type plan struct {
 	widen    float64 // the design's change across the resolution
 	omega    float64 // radians per sample
 	reason   string  // why no reading is possible
+	// harm, for a centre of a tracking notch, is its multiple of the
+	// hum's fundamental: it is read along the track at harm * f(t).
+	harm float64
 }
 
 type group struct {
-	seg      int
-	win      []float64
-	sumW2    float64
-	rho1     float64 // the window's correlation at half overlap
-	enbw     float64 // equivalent noise bandwidth, bins
-	plans    []int
-	bx, by   [][]float64
-	start    int
-	segs     int
-	psd      [][]float64 // per channel, summed |FFT|^2 of the input (not for tones)
-	fft      *fourier.FFT
-	coef     []complex128
-	wx, wy   []float64
+	seg    int
+	win    []float64
+	sumW2  float64
+	rho1   float64 // the window's correlation at half overlap
+	enbw   float64 // equivalent noise bandwidth, bins
+	plans  []int
+	bx, by [][]float64
+	start  int
+	segs   int
+	psd    [][]float64 // per channel, summed |FFT|^2 of the input (not for tones)
+	fft    *fourier.FFT
+	coef   []complex128
+	wx, wy []float64
+	// tracked groups read tracking-notch centres along the hum's track;
+	// ph is the fundamental's phase, in radians, over the segment.
+	tracked  bool
+	ph       []float64
 	absH     []float64 // design magnitude at the FFT bins, made when judging
 	finished bool
 }
@@ -123,6 +131,7 @@ type sums struct {
 	xx, yy float64
 	xy     complex128
 	n      int
+	side   float64 // tracked centres: the input's power sideBins away
 }
 
 // Session reads one run from its input and output frames fed in order.
@@ -140,6 +149,13 @@ type Session struct {
 	acc    [][]sums // [plan][checked channel]
 	// windows holds the windows made, by length.
 	windows map[int][]float64
+	// tstage is the index of the tracking notch stage, -1 for none;
+	// tracks its track(s), tmean the mean of each over the frames read.
+	tstage int
+	tracks []process.FrequencyTrack
+	tmean  []float64
+	tlo    []float64
+	thi    []float64
 }
 
 // NewSession prepares the reading of a run of f over frames frames of
@@ -154,7 +170,7 @@ func NewSession(f *design.Filter, pts []Point, channels int, frames int64, o Opt
 	if pts == nil {
 		pts = Points(f)
 	}
-	s := &Session{f: f, o: o, fs: f.SampleRate, nc: channels, frames: frames}
+	s := &Session{f: f, o: o, fs: f.SampleRate, nc: channels, frames: frames, tstage: -1}
 	s.chans = o.Channels
 	if len(s.chans) == 0 {
 		for c := 0; c < channels; c++ {
@@ -167,15 +183,31 @@ func NewSession(f *design.Filter, pts []Point, channels int, frames int64, o Opt
 	}
 	s.skip = int64(f.DecaySamples(decay, 0))
 	usable := frames - 2*s.skip
+	for i, st := range f.Stages {
+		if st.Spec.Tracking && st.Form == design.FormNotch {
+			s.tstage = i
+			s.trackStats(o.Tracks)
+			break
+		}
+	}
 	bySeg := map[int]int{}
 	for _, p := range pts {
-		pl := s.planPoint(p, usable)
+		var pl plan
+		if p.Stage == s.tstage {
+			pl = s.planTracked(p, usable)
+		} else {
+			pl = s.planPoint(p, usable)
+		}
 		if pl.seg > 0 {
-			gi, ok := bySeg[pl.seg]
+			key := pl.seg
+			if pl.harm > 0 {
+				key = -pl.seg
+			}
+			gi, ok := bySeg[key]
 			if !ok {
 				gi = len(s.groups)
-				bySeg[pl.seg] = gi
-				s.groups = append(s.groups, s.newGroup(pl.seg))
+				bySeg[key] = gi
+				s.groups = append(s.groups, s.newGroup(pl.seg, pl.harm > 0))
 			}
 			pl.group = gi
 			s.groups[gi].plans = append(s.groups[gi].plans, len(s.plans))
@@ -189,8 +221,8 @@ func NewSession(f *design.Filter, pts []Point, channels int, frames int64, o Opt
 	return s, nil
 }
 
-func (s *Session) newGroup(seg int) *group {
-	g := &group{seg: seg, win: s.windowOf(seg)}
+func (s *Session) newGroup(seg int, tracked bool) *group {
+	g := &group{seg: seg, win: s.windowOf(seg), tracked: tracked}
 	var c float64
 	for t, w := range g.win {
 		g.sumW2 += w * w
@@ -210,7 +242,10 @@ func (s *Session) newGroup(seg int) *group {
 		g.by[i] = make([]float64, 0, seg+seg/2)
 	}
 	g.wx, g.wy = make([]float64, seg), make([]float64, seg)
-	if !s.o.Tone {
+	if tracked {
+		g.ph = make([]float64, seg)
+	}
+	if !s.o.Tone && !tracked {
 		g.psd = make([][]float64, len(s.chans))
 		for i := range g.psd {
 			g.psd[i] = make([]float64, seg/2+1)
@@ -459,9 +494,19 @@ func (s *Session) segment(g *group) {
 			g.wx[t] = w * (xs[t] - mx)
 			g.wy[t] = w * (ys[t] - my)
 		}
+		if g.tracked {
+			s.trackPhase(g, ci)
+		}
 		for _, pi := range g.plans {
-			X, Y := singleDFT(g.wx, g.wy, s.plans[pi].omega)
+			var X, Y complex128
 			a := &s.acc[pi][ci]
+			if g.tracked {
+				var side float64
+				X, Y, side = trackedDFT(g.wx, g.wy, g.ph, s.plans[pi].harm)
+				a.side += side
+			} else {
+				X, Y = singleDFT(g.wx, g.wy, s.plans[pi].omega)
+			}
 			a.xx += real(X)*real(X) + imag(X)*imag(X)
 			a.yy += real(Y)*real(Y) + imag(Y)*imag(Y)
 			a.xy += cmplx.Conj(X) * Y

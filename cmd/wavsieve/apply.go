@@ -567,6 +567,8 @@ func failureHint(err error) string {
 	var fe *process.FormatError
 	var se *process.ShortInputError
 	var nr *wavio.NotRegularError
+	var bad wavio.FormatError
+	var uns wavio.UnsupportedError
 	switch {
 	case errors.As(err, &fe):
 		return "choose the output format with --sample-format (pcm16, pcm24, pcm32, float32 or float64)"
@@ -574,6 +576,12 @@ func failureHint(err error) string {
 		return "check the input; --allow-short writes what could be read, with a warning"
 	case errors.As(err, &nr):
 		return "only regular files are read and written; move it away or name another file"
+	case errors.Is(err, io.ErrUnexpectedEOF):
+		return "the file ends inside its header (an interrupted copy or recording?): copy it again from its source"
+	case errors.As(err, &bad):
+		return "it is not a WAV file or its header is damaged: check that it is a WAV (RIFF, RF64 or BW64) file"
+	case errors.As(err, &uns):
+		return "convert it to integer PCM or float WAV first"
 	}
 	return ""
 }

@@ -269,3 +269,20 @@ func TestApplyInterruptedInDesign(t *testing.T) {
 		})
 	}
 }
+
+// TestApplyBadHeaderHints: a file that is not a WAV file and one cut
+// inside its header each fail alone, and each message says what to do.
+func TestApplyBadHeaderHints(t *testing.T) {
+	dir := t.TempDir()
+	os.WriteFile(filepath.Join(dir, "notwav.wav"), []byte(strings.Repeat("not a wave file ", 8)), 0o644)
+	os.WriteFile(filepath.Join(dir, "cut.wav"), []byte("RIFF\x24\x00\x00\x00WAVEfmt "), 0o644)
+	code, _, stderr := runCmd(t, applyCmd("-o", filepath.Join(dir, "out"), filepath.Join(dir, "notwav.wav"), filepath.Join(dir, "cut.wav"))...)
+	if code != exitFail {
+		t.Fatalf("exit %d, want %d: %s", code, exitFail, stderr)
+	}
+	for _, want := range []string{"notwav.wav", "hint: it is not a WAV file", "cut.wav", "hint: the file ends inside its header", "2 failed"} {
+		if !strings.Contains(stderr, want) {
+			t.Errorf("stderr lacks %q:\n%s", want, stderr)
+		}
+	}
+}

@@ -2,10 +2,10 @@ package main
 
 import "strings"
 
-// libPrefixes are the "pkg: " prefixes library errors carry (the style of
-// their messages); they mean nothing to a user and are left out of what
-// the command prints, wherever the wrapping put them.
-var libPrefixes = []string{"design: ", "process: ", "verify: ", "analyze: ", "runrecord: ", "wavio: "}
+// libPrefixes are the "pkg: " prefixes library errors carry: those of
+// plainMessage and analyze/verify's; they mean nothing to a user and are
+// left out of what the command prints, wherever the wrapping put them.
+var libPrefixes = append([]string{"verify: "}, libraryPrefixes...)
 
 // userMessage is msg without the library prefixes, at its start or after
 // a ": " that a wrapping added ("in.wav: process: no channel 3" reads

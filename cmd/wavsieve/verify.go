@@ -213,7 +213,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	vo := verify.Options{Channels: only, Segment: o.segment}
+	vo := verify.Options{Channels: only, Segment: o.segment, NewTracker: newHumTracker}
 	doc := verifyDocument{Checks: []verify.Check{}, Note: verifyNote}
 	for _, p := range pairs {
 		var res *verify.Result
@@ -421,7 +421,7 @@ func printVerify(w io.Writer, r *verify.Result) {
 		if c.Label != "" && len(c.Kind)+1+len(c.Label) > 13 {
 			fmt.Fprintf(w, "        %s\n", c.Label)
 		}
-		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1)) {
+		if c.Reason != "" && (c.Verdict != verify.Pass || c.IntervalDB != nil && math.IsInf(c.IntervalDB[0], -1) || len(c.TrackRangeHz) > 0) {
 			fmt.Fprintf(w, "        %s\n", c.Reason)
 		}
 	}

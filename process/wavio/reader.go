@@ -67,6 +67,7 @@ type Reader struct {
 	dataLen   int64 // bytes of audio to read; -1: runs to the end of the file
 	dataOdd   bool  // the data chunk has an odd declared size and a pad byte
 	frames    int64 // frame count, -1 while unknown
+	claimed   int64 // frames the data chunk's size claims when the file holds fewer, else 0
 	pos       int64 // frames returned so far (or the SeekFrame position)
 	done      bool  // the data has been read to its end
 	trailer   bool  // the chunks after the data have been parsed
@@ -198,6 +199,12 @@ func (r *Reader) Chunks() []Chunk { return r.chunks }
 
 // Warnings returns the tolerated defects found so far: at most 64, and
 // then one more that says how many were left out.
+// ClaimedFrames returns the frame count that the data chunk's size
+// claims when the file on disk holds fewer (a file cut short after its
+// header was written), and 0 otherwise. Frames then gives what the file
+// holds.
+func (r *Reader) ClaimedFrames() int64 { return r.claimed }
+
 func (r *Reader) Warnings() []Warning {
 	if r.warnOmitted == 0 {
 		return r.warnings
@@ -651,6 +658,7 @@ func (r *Reader) startData(declared int64, raw32 uint32) error {
 		r.warn(WarnDataOverrun, r.dataStart-4, "data chunk claims %d bytes, the file holds %d", declared, left)
 		r.dataLen = left
 		r.dataOdd = false
+		r.claimed = declared / int64(r.ba)
 	default:
 		r.dataLen = declared
 	}
