@@ -3,9 +3,11 @@
 // stereo), each with a DC offset, a mains-like tone with harmonics,
 // rumble and seeded noise, in the invented scenario of samples/README.md
 // (the loggers of the Reedmere survey). The same flags give the same
-// bytes.
+// bytes. With -frames every file holds the same number of frames (its
+// length in seconds then depends on its rate), so that shares of equal
+// file count are equal work whatever rates they draw.
 //
-//	go run ./testdata/cluster/gen -dir /tmp/archive [-n 24] [-seconds 6]
+//	go run ./testdata/cluster/gen -dir /tmp/archive [-n 24] [-seconds 6 | -frames 1920000]
 package main
 
 import (
@@ -25,6 +27,7 @@ func main() {
 	dir := flag.String("dir", "", "output `folder`")
 	n := flag.Int("n", 24, "number of files")
 	seconds := flag.Float64("seconds", 6, "length of each file in `seconds`")
+	frames := flag.Int("frames", 0, "length of each file in `frames`, whatever its rate (instead of -seconds)")
 	flag.Parse()
 	if *dir == "" || *n < 1 || *seconds <= 0 {
 		fmt.Fprintln(os.Stderr, "gen: give -dir, and -n and -seconds above 0")
@@ -34,7 +37,11 @@ func main() {
 		rate := rates[i%len(rates)]
 		// Files in two sub-folders, so that the outputs mirror a tree.
 		name := filepath.Join(*dir, fmt.Sprintf("logger-%d", i%2+1), fmt.Sprintf("reedmere-%02d-%dk.wav", i, rate/1000))
-		if err := write(name, rate, 1+i%2, int(*seconds*float64(rate)), uint64(i)); err != nil {
+		length := int(*seconds * float64(rate))
+		if *frames > 0 {
+			length = *frames
+		}
+		if err := write(name, rate, 1+i%2, length, uint64(i)); err != nil {
 			fmt.Fprintln(os.Stderr, "gen:", err)
 			os.Exit(1)
 		}
