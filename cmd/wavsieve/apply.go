@@ -16,6 +16,7 @@ import (
 	"syscall"
 
 	"github.com/spf13/pflag"
+	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/analyze/verify"
 	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process"
@@ -174,7 +175,7 @@ func runApply(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "apply", usagef("--workers must be at least 1"), "")
 	}
 	tmpl := process.FileJob{Spec: spec, NoDither: o.noDither, DitherSeed: o.seed, SteadyStart: o.steady, TempDir: o.tempDir, AllowNonFinite: o.nonFinite, AllowShort: o.allowShort}
-	tmpl.NewTracker, tmpl.TrackPerChannel = newHumTracker, o.trackPerChannel
+	tmpl.NewTracker, tmpl.TrackPerChannel = analyze.NewHumTracker, o.trackPerChannel
 	if o.sampleFmt != "" {
 		enc, bits, err := parseSampleFormat(o.sampleFmt)
 		if err != nil {

@@ -15,6 +15,7 @@ import (
 	"syscall"
 
 	"github.com/spf13/pflag"
+	"github.com/wavsieve/wavsieve/analyze"
 	"github.com/wavsieve/wavsieve/analyze/plots"
 	"github.com/wavsieve/wavsieve/analyze/verify"
 	"github.com/wavsieve/wavsieve/design"
@@ -213,7 +214,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	vo := verify.Options{Channels: only, Segment: o.segment, NewTracker: newHumTracker}
+	vo := verify.Options{Channels: only, Segment: o.segment, NewTracker: analyze.NewHumTracker}
 	doc := verifyDocument{Checks: []verify.Check{}, Note: verifyNote}
 	for _, p := range pairs {
 		var res *verify.Result

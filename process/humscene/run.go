@@ -63,35 +63,8 @@ func Filter(dir, name string, x []float64, rate float64, spec design.Spec, track
 	return y, res, err
 }
 
-// Tracker is the process.NewHumTracker of analyze's tracker, as the
-// command sets it.
-func Tracker(rate float64, channels int, st design.Stage, perChannel bool) (process.HumTracker, error) {
-	k := st.Harmonics
-	if k == 0 || k > 40 {
-		k = 40
-	}
-	t, err := analyze.NewTracker(analyze.TrackOptions{SampleRate: rate, Channels: channels, NominalHz: st.FundamentalHz, Harmonics: k, PerChannel: perChannel})
-	if err != nil {
-		return nil, err
-	}
-	return tracker{t}, nil
-}
-
-type tracker struct{ t *analyze.Tracker }
-
-func (h tracker) Write(frames []float64) { h.t.Write(frames) }
-
-func (h tracker) Tracks() ([]process.FrequencyTrack, error) {
-	tr, err := h.t.Result()
-	if err != nil {
-		return nil, err
-	}
-	out := make([]process.FrequencyTrack, len(tr))
-	for i, t := range tr {
-		out[i] = t
-	}
-	return out, nil
-}
+// Tracker is the process.NewHumTracker the command filters with.
+var Tracker process.NewHumTracker = analyze.NewHumTracker
 
 // Recorder wraps Tracker and keeps the tracks it measured, so that the
 // twin can be filtered with the very same track (Replay): the two runs
