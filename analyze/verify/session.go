@@ -125,6 +125,8 @@ type group struct {
 	ph       []float64
 	absH     []float64 // design magnitude at the FFT bins, made when judging
 	finished bool
+	// allocated says the reading buffers are made (Session.allocate).
+	allocated bool
 }
 
 type sums struct {
@@ -164,6 +166,13 @@ type Session struct {
 // check is no error: the check comes out unmeasurable, with the length it
 // needs.
 func NewSession(f *design.Filter, pts []Point, channels int, frames int64, o Options) (*Session, error) {
+	return newSession(f, pts, channels, frames, o, false)
+}
+
+// newSession is NewSession; with lazy set the reading buffers are made by
+// allocate, so that the observer can take their memory from its budget
+// first.
+func newSession(f *design.Filter, pts []Point, channels int, frames int64, o Options, lazy bool) (*Session, error) {
 	if err := o.validate(channels); err != nil {
 		return nil, err
 	}
@@ -218,7 +227,51 @@ func NewSession(f *design.Filter, pts []Point, channels int, frames int64, o Opt
 	for i := range s.acc {
 		s.acc[i] = make([]sums, len(s.chans))
 	}
+	if !lazy {
+		s.allocate()
+	}
 	return s, nil
+}
+
+// allocate makes the reading buffers of every group (once).
+func (s *Session) allocate() {
+	for _, g := range s.groups {
+		if g.allocated {
+			continue
+		}
+		g.allocated = true
+		g.bx, g.by = make([][]float64, len(s.chans)), make([][]float64, len(s.chans))
+		for i := range g.bx {
+			g.bx[i] = make([]float64, 0, g.seg+g.seg/2)
+			g.by[i] = make([]float64, 0, g.seg+g.seg/2)
+		}
+		g.wx, g.wy = make([]float64, g.seg), make([]float64, g.seg)
+		if g.tracked {
+			g.ph = make([]float64, g.seg)
+		}
+		if !s.o.Tone && !g.tracked {
+			g.psd = make([][]float64, len(s.chans))
+			for i := range g.psd {
+				g.psd[i] = make([]float64, g.seg/2+1)
+			}
+			g.fft = fourier.NewFFT(g.seg)
+			g.coef = make([]complex128, g.seg/2+1)
+		}
+	}
+}
+
+// bufferBytes is about the memory allocate takes: per group and checked
+// channel two reading buffers of 1.5 segments and the summed spectrum;
+// per group the two windowed segments, the phase, the FFT's tables and
+// its coefficients.
+func (s *Session) bufferBytes() int64 {
+	var b int64
+	for _, g := range s.groups {
+		seg := int64(g.seg)
+		b += int64(len(s.chans)) * (3*seg + seg/2 + 1) * 8
+		b += (3*seg + 4*seg + 2*(seg/2+1)) * 8
+	}
+	return b
 }
 
 func (s *Session) newGroup(seg int, tracked bool) *group {
@@ -236,23 +289,6 @@ func (s *Session) newGroup(seg int, tracked bool) *group {
 		sw += w
 	}
 	g.enbw = float64(seg) * g.sumW2 / (sw * sw)
-	g.bx, g.by = make([][]float64, len(s.chans)), make([][]float64, len(s.chans))
-	for i := range g.bx {
-		g.bx[i] = make([]float64, 0, seg+seg/2)
-		g.by[i] = make([]float64, 0, seg+seg/2)
-	}
-	g.wx, g.wy = make([]float64, seg), make([]float64, seg)
-	if tracked {
-		g.ph = make([]float64, seg)
-	}
-	if !s.o.Tone && !tracked {
-		g.psd = make([][]float64, len(s.chans))
-		for i := range g.psd {
-			g.psd[i] = make([]float64, seg/2+1)
-		}
-		g.fft = fourier.NewFFT(seg)
-		g.coef = make([]complex128, seg/2+1)
-	}
 	return g
 }
 
