@@ -227,7 +227,13 @@ func newSession(f *design.Filter, pts []Point, channels int, frames int64, o Opt
 	for i := range s.acc {
 		s.acc[i] = make([]sums, len(s.chans))
 	}
-	if !lazy {
+	if lazy {
+		// The windows are made again by allocate, within the budget.
+		s.windows = nil
+		for _, g := range s.groups {
+			g.win = nil
+		}
+	} else {
 		s.allocate()
 	}
 	return s, nil
@@ -240,6 +246,7 @@ func (s *Session) allocate() {
 			continue
 		}
 		g.allocated = true
+		g.win = s.windowOf(g.seg)
 		g.bx, g.by = make([][]float64, len(s.chans)), make([][]float64, len(s.chans))
 		for i := range g.bx {
 			g.bx[i] = make([]float64, 0, g.seg+g.seg/2)
@@ -262,14 +269,14 @@ func (s *Session) allocate() {
 
 // bufferBytes is about the memory allocate takes: per group and checked
 // channel two reading buffers of 1.5 segments and the summed spectrum;
-// per group the two windowed segments, the phase, the FFT's tables and
-// its coefficients.
+// per group the window, the two windowed segments, the phase, the FFT's
+// tables and its coefficients.
 func (s *Session) bufferBytes() int64 {
 	var b int64
 	for _, g := range s.groups {
 		seg := int64(g.seg)
 		b += int64(len(s.chans)) * (3*seg + seg/2 + 1) * 8
-		b += (3*seg + 4*seg + 2*(seg/2+1)) * 8
+		b += (4*seg + 4*seg + 2*(seg/2+1)) * 8
 	}
 	return b
 }
