@@ -228,15 +228,41 @@ func newSession(f *design.Filter, pts []Point, channels int, frames int64, o Opt
 		s.acc[i] = make([]sums, len(s.chans))
 	}
 	if lazy {
-		// The windows are made again by allocate, within the budget.
+		s.fitBudget(ObserverMemory)
+		// A window made while planning is made again by allocate,
+		// within the budget.
 		s.windows = nil
-		for _, g := range s.groups {
-			g.win = nil
-		}
 	} else {
 		s.allocate()
 	}
 	return s, nil
+}
+
+// fitBudget drops the groups of the longest segments until the reading
+// buffers fit in limit bytes: their checks come out unmeasurable, saying
+// how much memory they need and how to measure them.
+func (s *Session) fitBudget(limit int64) {
+	for len(s.groups) > 0 && s.bufferBytes() > limit {
+		gi := 0
+		for i, g := range s.groups {
+			if g.seg > s.groups[gi].seg {
+				gi = i
+			}
+		}
+		g := s.groups[gi]
+		one := &Session{o: s.o, chans: s.chans, groups: []*group{g}}
+		for _, pi := range g.plans {
+			pl := &s.plans[pi]
+			pl.seg, pl.group = 0, -1
+			pl.reason = fmt.Sprintf("not measured during apply: its %d-sample segments need %d MiB, more than the %d MiB apply --verify holds for all files at once; wavsieve verify on this file reads it", g.seg, one.bufferBytes()>>20, limit>>20)
+		}
+		s.groups = append(s.groups[:gi], s.groups[gi+1:]...)
+		for i := gi; i < len(s.groups); i++ {
+			for _, pi := range s.groups[i].plans {
+				s.plans[pi].group = i
+			}
+		}
+	}
 }
 
 // allocate makes the reading buffers of every group (once).
@@ -246,7 +272,7 @@ func (s *Session) allocate() {
 			continue
 		}
 		g.allocated = true
-		g.win = s.windowOf(g.seg)
+		g.setWindow(s.windowOf(g.seg))
 		g.bx, g.by = make([][]float64, len(s.chans)), make([][]float64, len(s.chans))
 		for i := range g.bx {
 			g.bx[i] = make([]float64, 0, g.seg+g.seg/2)
@@ -281,8 +307,17 @@ func (s *Session) bufferBytes() int64 {
 	return b
 }
 
+// newGroup returns a group of segments of seg samples; its window and
+// buffers are made by allocate.
 func (s *Session) newGroup(seg int, tracked bool) *group {
-	g := &group{seg: seg, win: s.windowOf(seg), tracked: tracked}
+	return &group{seg: seg, tracked: tracked}
+}
+
+// setWindow sets the group's window and the figures of it that the
+// judging uses.
+func (g *group) setWindow(win []float64) {
+	seg := g.seg
+	g.win, g.sumW2 = win, 0
 	var c float64
 	for t, w := range g.win {
 		g.sumW2 += w * w
@@ -296,7 +331,6 @@ func (s *Session) newGroup(seg int, tracked bool) *group {
 		sw += w
 	}
 	g.enbw = float64(seg) * g.sumW2 / (sw * sw)
-	return g
 }
 
 // windowOf returns the window of length seg, made once per session.
