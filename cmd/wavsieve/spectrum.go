@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -128,9 +129,17 @@ func runSpectrum(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			return report(stderr, "spectrum", usagef("--plot %s: the file name must end in .svg or .png", *plot), "")
 		}
 	}
+	// From here on Ctrl-C and SIGTERM stop the reading between blocks;
+	// nothing is written after it.
+	ctx, stop := signalContext()
+	defer stop()
 	var docs []*spectrumDoc
 	for _, name := range fs.Args() {
-		d, err := fileSpectrum(name, opt, *avgCh)
+		d, err := fileSpectrum(ctx, name, opt, *avgCh)
+		if ctx.Err() != nil {
+			fmt.Fprintln(stderr, "wavsieve spectrum: interrupted; nothing was written")
+			return exitFail
+		}
 		if err != nil {
 			return report(stderr, "spectrum", err, spectrumHint(err))
 		}
@@ -173,7 +182,7 @@ func spectrumHint(err error) string {
 
 // fileSpectrum estimates the spectra of the channels of a WAV file,
 // streaming it (mean averaging) or holding it (median).
-func fileSpectrum(name string, opt analyze.Options, avg bool) (*spectrumDoc, error) {
+func fileSpectrum(ctx context.Context, name string, opt analyze.Options, avg bool) (*spectrumDoc, error) {
 	r, err := wavio.Open(name, nil)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
@@ -211,6 +220,9 @@ func fileSpectrum(name string, opt analyze.Options, avg bool) (*spectrumDoc, err
 		}
 	}
 	for {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		n, rerr := r.ReadFrames(buf)
 		if n > 0 {
 			dst := planar

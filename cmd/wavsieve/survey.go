@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -152,17 +153,31 @@ func runSurvey(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "survey", usagef("%v", strings.TrimPrefix(err.Error(), "analyze: ")), "")
 	}
 
+	// From here on Ctrl-C and SIGTERM stop the survey between blocks;
+	// nothing is written after it.
+	ctx, stop := signalContext()
+	defer stop()
 	var doc surveyDoc
 	doc.ThresholdDB, doc.BlockS = *threshold, *block
 	for _, arg := range fs.Args() {
+		if ctx.Err() != nil {
+			break
+		}
 		paths, err := expandInputs(arg, *recursive)
 		if err != nil {
 			doc.Files = append(doc.Files, surveyFile{Path: arg, Error: err.Error()})
 			continue
 		}
 		for _, p := range paths {
-			doc.Files = append(doc.Files, surveyOne(p, opt))
+			if ctx.Err() != nil {
+				break
+			}
+			doc.Files = append(doc.Files, surveyOne(ctx, p, opt))
 		}
+	}
+	if ctx.Err() != nil {
+		fmt.Fprintln(stderr, "wavsieve survey: interrupted; nothing was written")
+		return exitFail
 	}
 	if *writeSpec != "" && len(doc.Files) != 1 {
 		return report(stderr, "survey", usagef("--write-spec takes exactly one input file, got %d", len(doc.Files)), "")
@@ -235,7 +250,7 @@ func expandInputs(arg string, recursive bool) ([]string, error) {
 }
 
 // surveyOne reads one file through an analyze.Surveyor.
-func surveyOne(path string, opt analyze.SurveyOptions) surveyFile {
+func surveyOne(ctx context.Context, path string, opt analyze.SurveyOptions) surveyFile {
 	sf := surveyFile{Path: path}
 	r, err := wavio.Open(path, nil)
 	if err != nil {
@@ -264,6 +279,10 @@ func surveyOne(path string, opt analyze.SurveyOptions) surveyFile {
 	tk, _ := analyze.NewTracker(analyze.TrackOptions{SampleRate: float64(f.SampleRate), Channels: f.Channels, MainsHz: opt.MainsHz, SearchHz: math.Min(opt.SearchHz, 4.9)})
 	buf := make([]float64, 8192*f.Channels)
 	for {
+		if ctx.Err() != nil {
+			sf.Error = fmt.Sprintf("%s: interrupted", path)
+			return sf
+		}
 		n, err := r.ReadFrames(buf)
 		s.Write(buf[:n*f.Channels])
 		if tk != nil {
