@@ -483,12 +483,17 @@ func (t *Tracker) Result() ([]*HumTrack, error) {
 	return out, nil
 }
 
-// coarse holds the coarse spectra of the blocks.
+// coarse holds the coarse spectra of the blocks: of each only the bins
+// the tracker reads (bins off to off+len-1 of the nfft/2+1 of the whole
+// half-spectrum), those within one fundamental of every measured
+// harmonic of every candidate nominal (humAbove's band and search range,
+// at's grid points inside the search range).
 type coarse struct {
 	nfft   int
 	df     float64
+	off    int // first bin kept
 	starts []int
-	psd    [][][]float64 // [block][channel][bin]
+	psd    [][][]float64 // [block][channel][bin - off]
 }
 
 func (t *Tracker) coarseSpectra(chans []int) *coarse {
@@ -513,6 +518,21 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 		win[i] = 0.5 - 0.5*math.Cos(2*math.Pi*float64(i)/float64(bl))
 	}
 	cs := &coarse{nfft: nfft, df: t.rate / float64(nfft)}
+	// The bins humAbove reads (it clamps to 1 .. nfft/2), and those at
+	// reads: k f within the search range, which humAbove's range covers
+	// with 1.5 Hz to spare (more than a bin, df <= 0.25 Hz, plus the grid's
+	// rounding, k trackCoarseStepHz / 2).
+	first, last := nfft/2, 1
+	for _, f := range t.nominals() {
+		for k := 1; k <= t.harmonicsOf(f); k++ {
+			kf := float64(k)
+			lo := int(math.Floor(min(kf*(f-t.o.SearchHz)-1.5, kf*f-f/2) / cs.df))
+			hi := int(math.Ceil(max(kf*(f+t.o.SearchHz)+1.5, kf*f+f/2) / cs.df))
+			first, last = min(first, max(lo, 0)), max(last, min(hi, nfft/2))
+		}
+	}
+	first, last = min(first, last), max(first, last)
+	cs.off = first
 	buf := make([]float64, nfft)
 	for s := 0; s+bl <= n; s += hop {
 		var b [][]float64
@@ -529,8 +549,8 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 			fft.load(z, buf, ones, 0, 0)
 			fft.transform(z)
 			fft.unpack(coef, z)
-			p := make([]float64, len(coef))
-			for i, v := range coef {
+			p := make([]float64, last-first+1)
+			for i, v := range coef[first : last+1] {
 				p[i] = real(v)*real(v) + imag(v)*imag(v)
 			}
 			b = append(b, p)
@@ -541,15 +561,16 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 	return cs
 }
 
-// at interpolates a power spectrum linearly at hz.
+// at interpolates a power spectrum (bins cs.off on) linearly at hz; 0
+// beyond the half-spectrum.
 func (cs *coarse) at(p []float64, hz float64) float64 {
 	x := hz / cs.df
 	i := int(x)
-	if i < 0 || i+1 >= len(p) {
+	if i < 0 || i+1 > cs.nfft/2 {
 		return 0
 	}
 	f := x - float64(i)
-	return p[i] + f*(p[i+1]-p[i])
+	return p[i-cs.off] + f*(p[i+1-cs.off]-p[i-cs.off])
 }
 
 // humAbove measures harmonic k of nominal f in one spectrum: the peak
@@ -562,15 +583,16 @@ func (t *Tracker) humAbove(cs *coarse, p []float64, f float64, k int, scratchp *
 	hi := int(math.Ceil((kf*(f+t.o.SearchHz) + 1.5) / cs.df))
 	blo := int(math.Floor((kf*f - f/2) / cs.df))
 	bhi := int(math.Ceil((kf*f + f/2) / cs.df))
-	blo, bhi = max(blo, 1), min(bhi, len(p)-1)
-	lo, hi = max(lo, 1), min(hi, len(p)-1)
+	top := cs.nfft / 2 // the highest bin of the whole half-spectrum
+	blo, bhi = max(blo, 1), min(bhi, top)
+	lo, hi = max(lo, 1), min(hi, top)
 	for i := lo; i <= hi; i++ {
-		peak = math.Max(peak, p[i])
+		peak = math.Max(peak, p[i-cs.off])
 	}
 	scratch := (*scratchp)[:0]
 	for i := blo; i <= bhi; i++ {
 		if i < lo || i > hi {
-			scratch = append(scratch, p[i])
+			scratch = append(scratch, p[i-cs.off])
 		}
 	}
 	*scratchp = scratch
@@ -613,29 +635,40 @@ func selectKth(v []float64, k int) float64 {
 	return v[k]
 }
 
+// nominals returns the candidate nominal frequencies.
+func (t *Tracker) nominals() []float64 {
+	switch {
+	case t.o.NominalHz > 0:
+		return []float64{t.o.NominalHz}
+	case t.o.MainsHz > 0:
+		return []float64{t.o.MainsHz}
+	default:
+		return []float64{50, 60}
+	}
+}
+
+// harmonicsOf returns the harmonics of nominal f that are measured: up to
+// t.o.Harmonics, the first always, the others while their search range
+// and the phase window's band stay below t.top.
+func (t *Tracker) harmonicsOf(f float64) int {
+	k := 1
+	for k < t.o.Harmonics && float64(k+1)*(f+t.o.SearchHz)+15 <= t.top+1e-9 {
+		k++
+	}
+	return k
+}
+
 func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	cs := t.coarseSpectra(chans)
 	nb := len(cs.psd)
-	// Candidate nominal frequencies.
-	var noms []float64
-	switch {
-	case t.o.NominalHz > 0:
-		noms = []float64{t.o.NominalHz}
-	case t.o.MainsHz > 0:
-		noms = []float64{t.o.MainsHz}
-	default:
-		noms = []float64{50, 60}
-	}
+	noms := t.nominals()
 	var scratch []float64
 	bestScore, nominal := -1.0, 0.0
 	var used []harm
 	for _, f := range noms {
 		var hs []harm
 		score := 0.0
-		for k := 1; k <= t.o.Harmonics; k++ {
-			if float64(k)*(f+t.o.SearchHz)+15 > t.top+1e-9 && k > 1 {
-				break
-			}
+		for k := 1; k <= t.harmonicsOf(f); k++ {
 			for ci := range chans {
 				var sp, sf float64
 				for b := 0; b < nb; b++ {
