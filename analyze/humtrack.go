@@ -222,9 +222,13 @@ func (t *HumTrack) MaxRate() float64 {
 // The window sums of step 2 are taken from running sums (the Blackman
 // window is a sum of three cosines), so a pass costs a few operations per
 // reduced-rate sample and harmonic. Memory: the reduced-rate copy (4
-// bytes a sample per channel) and two float64 arrays of the reference
-// (16 bytes a sample): about 21 MB per channel-hour and 84 MB per hour
-// at 48 kHz with 9 harmonics of 50 Hz.
+// bytes a sample per channel, about 21 MB per channel-hour at 48 kHz
+// with 9 harmonics of 50 Hz) goes to an unlinked temporary file as it
+// is written (on Linux; see lowStore), so Write holds only buffers on
+// the heap; Result maps the file read-only and adds the coarse spectra
+// (the bins within one fundamental of each harmonic) and two float64
+// arrays of the reference (16 bytes a reduced-rate sample, 84 MB per
+// hour), freed when it returns.
 //
 // Limits: a steady tone within the search range and the phase window's
 // band (+-15 Hz of a harmonic), as loud as the hum, pulls the track
@@ -241,8 +245,12 @@ type Tracker struct {
 	pend   [][]float64 // per channel, input not yet consumed
 	base   int64       // input index of pend[c][0]
 	next   int64       // next output index
-	low    [][]float32 // per channel, reduced-rate signal
+	store  *lowStore   // the reduced-rate signal, per channel
+	low    [][]float32 // per channel, the reduced-rate signal while Result runs
 	frames int64
+	done   bool // Result ran: out and err are its answer
+	out    []*HumTrack
+	err    error
 	top    float64 // highest frequency tracked
 }
 
@@ -334,7 +342,7 @@ func NewTracker(o TrackOptions) (*Tracker, error) {
 		t.h = []float64{1}
 	}
 	t.pend = make([][]float64, o.Channels)
-	t.low = make([][]float32, o.Channels)
+	t.store = newLowStore(o.Channels)
 	t.base = -int64(t.half)
 	for c := range t.pend {
 		t.pend[c] = make([]float64, t.half) // zeros before the start
@@ -348,6 +356,9 @@ func (t *Tracker) Write(x []float64) {
 	ch := t.o.Channels
 	if len(x)%ch != 0 {
 		panic(fmt.Sprintf("analyze: Tracker.Write: %d samples is not a whole number of %d-channel frames", len(x), ch))
+	}
+	if t.done {
+		return
 	}
 	n := len(x) / ch
 	if ch == 1 {
@@ -384,7 +395,7 @@ func (t *Tracker) decimate(final bool) {
 			p := t.pend[c]
 			seg := p[from:min(from+len(t.h), len(p))] // zeros beyond the end
 			if len(seg) == len(t.h) {
-				t.low[c] = append(t.low[c], float32(foldedDot(t.h, seg)))
+				t.store.add(c, float32(foldedDot(t.h, seg)))
 				continue
 			}
 			h := t.h[:len(seg)]
@@ -400,7 +411,7 @@ func (t *Tracker) decimate(final bool) {
 			for ; i < len(seg); i++ {
 				s0 += h[i] * seg[i]
 			}
-			t.low[c] = append(t.low[c], float32((s0+s1)+(s2+s3)))
+			t.store.add(c, float32((s0+s1)+(s2+s3)))
 		}
 		t.next++
 	}
@@ -447,13 +458,45 @@ type harm struct {
 
 // Result tracks the hum in everything written. It returns one track,
 // or one per channel with PerChannel. The error wraps ErrNoHum when no
-// harmonic stands above the floor.
+// harmonic stands above the floor, ErrTrackSpill when the temporary file
+// of the reduced-rate signal failed. Result frees the Tracker's
+// temporary file and buffers; later calls return the same answer, and
+// nothing more may be written.
 func (t *Tracker) Result() ([]*HumTrack, error) {
+	if !t.done {
+		t.out, t.err = t.result()
+		t.done = true
+		t.store.close()
+	}
+	return t.out, t.err
+}
+
+// Close frees the temporary file and buffers of a Tracker whose Result
+// is not wanted (Result frees them itself). Nothing more may be written;
+// Result then answers with an error.
+func (t *Tracker) Close() {
+	if !t.done {
+		t.done = true
+		t.err = fmt.Errorf("analyze: %w: hum tracker closed before its result", ErrInvalidOption)
+		t.store.close()
+	}
+}
+
+func (t *Tracker) result() ([]*HumTrack, error) {
 	t.decimate(true)
-	n := len(t.low[0])
+	n := int(t.next)
 	if float64(n) < 2*trackCoarseSeconds*t.rate {
 		return nil, fmt.Errorf("analyze: %w: %.2f s of signal is too short to track hum; %g s at least", ErrInvalidOption, float64(t.frames)/t.o.SampleRate, 2*trackCoarseSeconds)
 	}
+	low, release, err := t.store.view(n)
+	if err != nil {
+		return nil, err
+	}
+	t.low = low
+	defer func() {
+		t.low = nil
+		release()
+	}()
 	var groups [][]int
 	if t.o.PerChannel {
 		for c := 0; c < t.o.Channels; c++ {
