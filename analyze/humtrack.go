@@ -526,17 +526,27 @@ func (t *Tracker) result() ([]*HumTrack, error) {
 	return out, nil
 }
 
-// coarse holds the coarse spectra of the blocks: of each only the bins
-// the tracker reads (bins off to off+len-1 of the nfft/2+1 of the whole
-// half-spectrum), those within one fundamental of every measured
-// harmonic of every candidate nominal (humAbove's band and search range,
-// at's grid points inside the search range).
+// coarse computes the coarse spectra of the blocks, one block at a
+// time (the tracker reads them twice, block by block, so none is kept):
+// of each only the bins the tracker reads (bins off to off+len-1 of the
+// nfft/2+1 of the whole half-spectrum), those within one fundamental of
+// every measured harmonic of every candidate nominal (humAbove's band
+// and search range, at's grid points inside the search range).
 type coarse struct {
+	t      *Tracker
+	chans  []int
 	nfft   int
 	df     float64
 	off    int // first bin kept
+	last   int // last bin kept
+	bl     int // block length
 	starts []int
-	psd    [][][]float64 // [block][channel][bin - off]
+	psd    [][]float64 // per channel of chans: the spectrum of the block loaded, [bin - off]
+
+	fft       *realFFT
+	ones, win []float64
+	buf       []float64
+	z, coef   []complex128
 }
 
 func (t *Tracker) coarseSpectra(chans []int) *coarse {
@@ -549,18 +559,17 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 	}
 	// nfft is a power of two: the project's own real FFT (rfft.go), which
 	// is checked against gonum's and takes about half its time here.
-	fft := newRealFFT(nfft)
-	ones := make([]float64, nfft)
-	for i := range ones {
-		ones[i] = 1
+	cs := &coarse{t: t, chans: chans, nfft: nfft, df: t.rate / float64(nfft), bl: bl, fft: newRealFFT(nfft)}
+	cs.ones = make([]float64, nfft)
+	for i := range cs.ones {
+		cs.ones[i] = 1
 	}
-	z := make([]complex128, nfft/2)
-	coef := make([]complex128, nfft/2+1)
-	win := make([]float64, bl)
-	for i := range win {
-		win[i] = 0.5 - 0.5*math.Cos(2*math.Pi*float64(i)/float64(bl))
+	cs.z = make([]complex128, nfft/2)
+	cs.coef = make([]complex128, nfft/2+1)
+	cs.win = make([]float64, bl)
+	for i := range cs.win {
+		cs.win[i] = 0.5 - 0.5*math.Cos(2*math.Pi*float64(i)/float64(bl))
 	}
-	cs := &coarse{nfft: nfft, df: t.rate / float64(nfft)}
 	// The bins humAbove reads (it clamps to 1 .. nfft/2), and those at
 	// reads: k f within the search range, which humAbove's range covers
 	// with 1.5 Hz to spare (more than a bin, df <= 0.25 Hz, plus the grid's
@@ -574,34 +583,40 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 			first, last = min(first, max(lo, 0)), max(last, min(hi, nfft/2))
 		}
 	}
-	first, last = min(first, last), max(first, last)
-	cs.off = first
-	buf := make([]float64, nfft)
+	cs.off, cs.last = min(first, last), max(first, last)
+	cs.buf = make([]float64, nfft)
+	cs.psd = make([][]float64, len(chans))
+	for i := range cs.psd {
+		cs.psd[i] = make([]float64, cs.last-cs.off+1)
+	}
 	for s := 0; s+bl <= n; s += hop {
-		var b [][]float64
-		for _, c := range chans {
-			clear(buf)
-			mean := 0.0
-			for i := 0; i < bl; i++ {
-				mean += float64(t.low[c][s+i])
-			}
-			mean /= float64(bl)
-			for i := 0; i < bl; i++ {
-				buf[i] = (float64(t.low[c][s+i]) - mean) * win[i]
-			}
-			fft.load(z, buf, ones, 0, 0)
-			fft.transform(z)
-			fft.unpack(coef, z)
-			p := make([]float64, last-first+1)
-			for i, v := range coef[first : last+1] {
-				p[i] = real(v)*real(v) + imag(v)*imag(v)
-			}
-			b = append(b, p)
-		}
 		cs.starts = append(cs.starts, s)
-		cs.psd = append(cs.psd, b)
 	}
 	return cs
+}
+
+// load computes the spectra of block b into cs.psd.
+func (cs *coarse) load(b int) {
+	s, bl, buf := cs.starts[b], cs.bl, cs.buf
+	for ci, c := range cs.chans {
+		x := cs.t.low[c][s : s+bl]
+		clear(buf)
+		mean := 0.0
+		for i := 0; i < bl; i++ {
+			mean += float64(x[i])
+		}
+		mean /= float64(bl)
+		for i := 0; i < bl; i++ {
+			buf[i] = (float64(x[i]) - mean) * cs.win[i]
+		}
+		cs.fft.load(cs.z, buf, cs.ones, 0, 0)
+		cs.fft.transform(cs.z)
+		cs.fft.unpack(cs.coef, cs.z)
+		p := cs.psd[ci]
+		for i, v := range cs.coef[cs.off : cs.last+1] {
+			p[i] = real(v)*real(v) + imag(v)*imag(v)
+		}
+	}
 }
 
 // at interpolates a power spectrum (bins cs.off on) linearly at hz; 0
@@ -703,22 +718,39 @@ func (t *Tracker) harmonicsOf(f float64) int {
 
 func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	cs := t.coarseSpectra(chans)
-	nb := len(cs.psd)
+	nb := len(cs.starts)
 	noms := t.nominals()
 	var scratch []float64
+	// Each harmonic's peaks and floors summed over the blocks, [nominal]
+	// [k-1][channel of chans].
+	sps := make([][][]float64, len(noms))
+	sfs := make([][][]float64, len(noms))
+	for fi, f := range noms {
+		for range t.harmonicsOf(f) {
+			sps[fi] = append(sps[fi], make([]float64, len(chans)))
+			sfs[fi] = append(sfs[fi], make([]float64, len(chans)))
+		}
+	}
+	for b := 0; b < nb; b++ {
+		cs.load(b)
+		for fi, f := range noms {
+			for k := 1; k <= t.harmonicsOf(f); k++ {
+				for ci := range chans {
+					p, fl := t.humAbove(cs, cs.psd[ci], f, k, &scratch)
+					sps[fi][k-1][ci] += p
+					sfs[fi][k-1][ci] += fl
+				}
+			}
+		}
+	}
 	bestScore, nominal := -1.0, 0.0
 	var used []harm
-	for _, f := range noms {
+	for fi, f := range noms {
 		var hs []harm
 		score := 0.0
 		for k := 1; k <= t.harmonicsOf(f); k++ {
 			for ci := range chans {
-				var sp, sf float64
-				for b := 0; b < nb; b++ {
-					p, fl := t.humAbove(cs, cs.psd[b][ci], f, k, &scratch)
-					sp += p
-					sf += fl
-				}
+				sp, sf := sps[fi][k-1][ci], sfs[fi][k-1][ci]
 				if !(sf > 0) {
 					continue
 				}
@@ -747,8 +779,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	ok := make([]bool, nb)
 	floors := make([]float64, len(used))
 	for b := 0; b < nb; b++ {
+		cs.load(b)
 		for j, u := range used {
-			_, fl := t.humAbove(cs, cs.psd[b][u.c], nominal, u.k, &scratch)
+			_, fl := t.humAbove(cs, cs.psd[u.c], nominal, u.k, &scratch)
 			floors[j] = fl / math.Ln2
 		}
 		score := func(i int) float64 {
@@ -756,7 +789,7 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 			s := 0.0
 			for j, u := range used {
 				if floors[j] > 0 {
-					s += cs.at(cs.psd[b][u.c], float64(u.k)*f) / floors[j]
+					s += cs.at(cs.psd[u.c], float64(u.k)*f) / floors[j]
 				}
 			}
 			return s
