@@ -30,7 +30,10 @@ var mappedBytes atomic.Int64
 //     reader's and writer's 64 KiB buffers and at most about 1 MiB of
 //     metadata (see package wavio), about 2 MiB in all;
 //   - the filter state of one file, at most stateBudget;
-//   - the Go runtime and the program itself, about 20 MB.
+//   - the Go runtime and the program itself, about 20 MB;
+//   - with apply --verify, the measurement of the files under way,
+//     within verify.ObserverMemory (64 MiB), given back as each file
+//     ends.
 //
 // With 32 workers that is at most 96 + 64 + 64 + 16 + 20 MiB; the figures
 // measured are in the README's reliability section.
