@@ -112,6 +112,15 @@ func trackPass(ctx context.Context, job *FileJob, f *design.Filter, stage int, b
 	if err != nil {
 		return nil, err
 	}
+	// The hum tracker's memory (its spectra and the reduced-rate copy
+	// while it reads; about 12 MB for two minutes of 48 kHz stereo) is
+	// held within the pool of edge buffers: at most four passes at once
+	// for all workers, each given back when its pass ends.
+	release, err := edges.acquire(ctx, trackPassBytes)
+	if err != nil {
+		return nil, err
+	}
+	defer release()
 	ch := inF.Channels
 	keep := int(math.Ceil(trackFitSeconds * float64(inF.SampleRate)))
 	t := &tracked{stage: stage}
@@ -229,6 +238,12 @@ func trackedZeroPhaseOptions(f *design.Filter, t *tracked, c *Cascade, tv *track
 	return opt
 }
 
+// trackPassBytes is what a tracking pass takes from the edge pool.
+const trackPassBytes = edgePool / 4
+
+// prerollChunkFrames is the pre-roll made and filtered at a time.
+const prerollChunkFrames = 8192
+
 // preroll runs the tracked cascade over the hum extrapolated before the
 // signal (fitted to its first trackFitSeconds, as a zero-phase run's left
 // extension), so that a causal run starts settled: a 0.5 Hz notch
@@ -255,7 +270,11 @@ func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) er
 	// prerollExactEvery frames, so that the turns' rounding (about 1e-16
 	// each) cannot build up. Only the pre-roll, whose output is thrown
 	// away, is made this way.
-	buf := make([]float64, pad*ch)
+	// The pre-roll is made and filtered a chunk at a time (the cascade
+	// keeps its state between calls), so that its memory is one chunk
+	// whatever the pad, for each of the workers at once.
+	chunk := min(pad, prerollChunkFrames)
+	buf := make([]float64, chunk*ch)
 	r := make([]float64, 1+2*len(omega))
 	steps := make([]complex128, len(omega))
 	for k, w := range omega {
@@ -268,26 +287,32 @@ func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) er
 			cols[k*len(r)+i] = cs.Data[i*cs.Stride+k]
 		}
 	}
-	for j := 0; j < pad; j++ {
-		if j%prerollExactEvery == 0 {
-			toneRow(r, float64(j-pad), omega)
-		} else {
-			for k, st := range steps {
-				c, s := r[1+2*k], r[2+2*k]
-				r[1+2*k], r[2+2*k] = c*real(st)-s*imag(st), c*imag(st)+s*real(st)
-			}
-		}
-		for k := 0; k < ch; k++ {
-			v := 0.0
-			for i, ci := range cols[k*len(r) : (k+1)*len(r)] {
-				v += r[i] * ci
-			}
-			buf[j*ch+k] = v
-		}
-	}
 	tv.setPositions(-int64(pad), 0)
-	c.Prime(buf[:ch])
-	c.Process(buf, buf)
+	for at := 0; at < pad; at += chunk {
+		n := min(chunk, pad-at)
+		for jj := 0; jj < n; jj++ {
+			j := at + jj
+			if j%prerollExactEvery == 0 {
+				toneRow(r, float64(j-pad), omega)
+			} else {
+				for k, st := range steps {
+					c, s := r[1+2*k], r[2+2*k]
+					r[1+2*k], r[2+2*k] = c*real(st)-s*imag(st), c*imag(st)+s*real(st)
+				}
+			}
+			for k := 0; k < ch; k++ {
+				v := 0.0
+				for i, ci := range cols[k*len(r) : (k+1)*len(r)] {
+					v += r[i] * ci
+				}
+				buf[jj*ch+k] = v
+			}
+		}
+		if at == 0 {
+			c.Prime(buf[:ch])
+		}
+		c.Process(buf[:n*ch], buf[:n*ch])
+	}
 	return nil
 }
 
