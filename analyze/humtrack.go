@@ -222,9 +222,15 @@ func (t *HumTrack) MaxRate() float64 {
 // The window sums of step 2 are taken from running sums (the Blackman
 // window is a sum of three cosines), so a pass costs a few operations per
 // reduced-rate sample and harmonic. Memory: the reduced-rate copy (4
-// bytes a sample per channel) and two float64 arrays of the reference
-// (16 bytes a sample): about 21 MB per channel-hour and 84 MB per hour
-// at 48 kHz with 9 harmonics of 50 Hz.
+// bytes a sample per channel, about 21 MB per channel-hour at 48 kHz
+// with 9 harmonics of 50 Hz) goes to an unlinked temporary file as it
+// is written (on Linux; see lowStore), so Write holds only buffers on
+// the heap; Result maps the file read-only (pages the kernel can drop)
+// and adds two float64 arrays of the reference (16 bytes a reduced-rate
+// sample, 84 MB per hour) and per-hop arrays, freed when it returns: a
+// peak of about 260 MB of Go heap in use for one hour of mono at 48 kHz
+// (measured). The coarse spectra are computed block by block and not
+// kept.
 //
 // Limits: a steady tone within the search range and the phase window's
 // band (+-15 Hz of a harmonic), as loud as the hum, pulls the track
@@ -241,8 +247,12 @@ type Tracker struct {
 	pend   [][]float64 // per channel, input not yet consumed
 	base   int64       // input index of pend[c][0]
 	next   int64       // next output index
-	low    [][]float32 // per channel, reduced-rate signal
+	store  *lowStore   // the reduced-rate signal, per channel
+	low    [][]float32 // per channel, the reduced-rate signal while Result runs
 	frames int64
+	done   bool // Result ran: out and err are its answer
+	out    []*HumTrack
+	err    error
 	top    float64 // highest frequency tracked
 }
 
@@ -334,7 +344,7 @@ func NewTracker(o TrackOptions) (*Tracker, error) {
 		t.h = []float64{1}
 	}
 	t.pend = make([][]float64, o.Channels)
-	t.low = make([][]float32, o.Channels)
+	t.store = newLowStore(o.Channels)
 	t.base = -int64(t.half)
 	for c := range t.pend {
 		t.pend[c] = make([]float64, t.half) // zeros before the start
@@ -348,6 +358,9 @@ func (t *Tracker) Write(x []float64) {
 	ch := t.o.Channels
 	if len(x)%ch != 0 {
 		panic(fmt.Sprintf("analyze: Tracker.Write: %d samples is not a whole number of %d-channel frames", len(x), ch))
+	}
+	if t.done {
+		return
 	}
 	n := len(x) / ch
 	if ch == 1 {
@@ -384,7 +397,7 @@ func (t *Tracker) decimate(final bool) {
 			p := t.pend[c]
 			seg := p[from:min(from+len(t.h), len(p))] // zeros beyond the end
 			if len(seg) == len(t.h) {
-				t.low[c] = append(t.low[c], float32(foldedDot(t.h, seg)))
+				t.store.add(c, float32(foldedDot(t.h, seg)))
 				continue
 			}
 			h := t.h[:len(seg)]
@@ -400,7 +413,7 @@ func (t *Tracker) decimate(final bool) {
 			for ; i < len(seg); i++ {
 				s0 += h[i] * seg[i]
 			}
-			t.low[c] = append(t.low[c], float32((s0+s1)+(s2+s3)))
+			t.store.add(c, float32((s0+s1)+(s2+s3)))
 		}
 		t.next++
 	}
@@ -447,13 +460,45 @@ type harm struct {
 
 // Result tracks the hum in everything written. It returns one track,
 // or one per channel with PerChannel. The error wraps ErrNoHum when no
-// harmonic stands above the floor.
+// harmonic stands above the floor, ErrTrackSpill when the temporary file
+// of the reduced-rate signal failed. Result frees the Tracker's
+// temporary file and buffers; later calls return the same answer, and
+// nothing more may be written.
 func (t *Tracker) Result() ([]*HumTrack, error) {
+	if !t.done {
+		t.out, t.err = t.result()
+		t.done = true
+		t.store.close()
+	}
+	return t.out, t.err
+}
+
+// Close frees the temporary file and buffers of a Tracker whose Result
+// is not wanted (Result frees them itself). Nothing more may be written;
+// Result then answers with an error.
+func (t *Tracker) Close() {
+	if !t.done {
+		t.done = true
+		t.err = fmt.Errorf("analyze: %w: hum tracker closed before its result", ErrInvalidOption)
+		t.store.close()
+	}
+}
+
+func (t *Tracker) result() ([]*HumTrack, error) {
 	t.decimate(true)
-	n := len(t.low[0])
+	n := int(t.next)
 	if float64(n) < 2*trackCoarseSeconds*t.rate {
 		return nil, fmt.Errorf("analyze: %w: %.2f s of signal is too short to track hum; %g s at least", ErrInvalidOption, float64(t.frames)/t.o.SampleRate, 2*trackCoarseSeconds)
 	}
+	low, release, err := t.store.view(n)
+	if err != nil {
+		return nil, err
+	}
+	t.low = low
+	defer func() {
+		t.low = nil
+		release()
+	}()
 	var groups [][]int
 	if t.o.PerChannel {
 		for c := 0; c < t.o.Channels; c++ {
@@ -483,12 +528,27 @@ func (t *Tracker) Result() ([]*HumTrack, error) {
 	return out, nil
 }
 
-// coarse holds the coarse spectra of the blocks.
+// coarse computes the coarse spectra of the blocks, one block at a
+// time (the tracker reads them twice, block by block, so none is kept):
+// of each only the bins the tracker reads (bins off to off+len-1 of the
+// nfft/2+1 of the whole half-spectrum), those within one fundamental of
+// every measured harmonic of every candidate nominal (humAbove's band
+// and search range, at's grid points inside the search range).
 type coarse struct {
+	t      *Tracker
+	chans  []int
 	nfft   int
 	df     float64
+	off    int // first bin kept
+	last   int // last bin kept
+	bl     int // block length
 	starts []int
-	psd    [][][]float64 // [block][channel][bin]
+	psd    [][]float64 // per channel of chans: the spectrum of the block loaded, [bin - off]
+
+	fft       *realFFT
+	ones, win []float64
+	buf       []float64
+	z, coef   []complex128
 }
 
 func (t *Tracker) coarseSpectra(chans []int) *coarse {
@@ -501,55 +561,76 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 	}
 	// nfft is a power of two: the project's own real FFT (rfft.go), which
 	// is checked against gonum's and takes about half its time here.
-	fft := newRealFFT(nfft)
-	ones := make([]float64, nfft)
-	for i := range ones {
-		ones[i] = 1
+	cs := &coarse{t: t, chans: chans, nfft: nfft, df: t.rate / float64(nfft), bl: bl, fft: newRealFFT(nfft)}
+	cs.ones = make([]float64, nfft)
+	for i := range cs.ones {
+		cs.ones[i] = 1
 	}
-	z := make([]complex128, nfft/2)
-	coef := make([]complex128, nfft/2+1)
-	win := make([]float64, bl)
-	for i := range win {
-		win[i] = 0.5 - 0.5*math.Cos(2*math.Pi*float64(i)/float64(bl))
+	cs.z = make([]complex128, nfft/2)
+	cs.coef = make([]complex128, nfft/2+1)
+	cs.win = make([]float64, bl)
+	for i := range cs.win {
+		cs.win[i] = 0.5 - 0.5*math.Cos(2*math.Pi*float64(i)/float64(bl))
 	}
-	cs := &coarse{nfft: nfft, df: t.rate / float64(nfft)}
-	buf := make([]float64, nfft)
-	for s := 0; s+bl <= n; s += hop {
-		var b [][]float64
-		for _, c := range chans {
-			clear(buf)
-			mean := 0.0
-			for i := 0; i < bl; i++ {
-				mean += float64(t.low[c][s+i])
-			}
-			mean /= float64(bl)
-			for i := 0; i < bl; i++ {
-				buf[i] = (float64(t.low[c][s+i]) - mean) * win[i]
-			}
-			fft.load(z, buf, ones, 0, 0)
-			fft.transform(z)
-			fft.unpack(coef, z)
-			p := make([]float64, len(coef))
-			for i, v := range coef {
-				p[i] = real(v)*real(v) + imag(v)*imag(v)
-			}
-			b = append(b, p)
+	// The bins humAbove reads (it clamps to 1 .. nfft/2), and those at
+	// reads: k f within the search range, which humAbove's range covers
+	// with 1.5 Hz to spare (more than a bin, df <= 0.25 Hz, plus the grid's
+	// rounding, k trackCoarseStepHz / 2).
+	first, last := nfft/2, 1
+	for _, f := range t.nominals() {
+		for k := 1; k <= t.harmonicsOf(f); k++ {
+			kf := float64(k)
+			lo := int(math.Floor(min(kf*(f-t.o.SearchHz)-1.5, kf*f-f/2) / cs.df))
+			hi := int(math.Ceil(max(kf*(f+t.o.SearchHz)+1.5, kf*f+f/2) / cs.df))
+			first, last = min(first, max(lo, 0)), max(last, min(hi, nfft/2))
 		}
+	}
+	cs.off, cs.last = min(first, last), max(first, last)
+	cs.buf = make([]float64, nfft)
+	cs.psd = make([][]float64, len(chans))
+	for i := range cs.psd {
+		cs.psd[i] = make([]float64, cs.last-cs.off+1)
+	}
+	for s := 0; s+bl <= n; s += hop {
 		cs.starts = append(cs.starts, s)
-		cs.psd = append(cs.psd, b)
 	}
 	return cs
 }
 
-// at interpolates a power spectrum linearly at hz.
+// load computes the spectra of block b into cs.psd.
+func (cs *coarse) load(b int) {
+	s, bl, buf := cs.starts[b], cs.bl, cs.buf
+	for ci, c := range cs.chans {
+		x := cs.t.low[c][s : s+bl]
+		clear(buf)
+		mean := 0.0
+		for i := 0; i < bl; i++ {
+			mean += float64(x[i])
+		}
+		mean /= float64(bl)
+		for i := 0; i < bl; i++ {
+			buf[i] = (float64(x[i]) - mean) * cs.win[i]
+		}
+		cs.fft.load(cs.z, buf, cs.ones, 0, 0)
+		cs.fft.transform(cs.z)
+		cs.fft.unpack(cs.coef, cs.z)
+		p := cs.psd[ci]
+		for i, v := range cs.coef[cs.off : cs.last+1] {
+			p[i] = real(v)*real(v) + imag(v)*imag(v)
+		}
+	}
+}
+
+// at interpolates a power spectrum (bins cs.off on) linearly at hz; 0
+// beyond the half-spectrum.
 func (cs *coarse) at(p []float64, hz float64) float64 {
 	x := hz / cs.df
 	i := int(x)
-	if i < 0 || i+1 >= len(p) {
+	if i < 0 || i+1 > cs.nfft/2 {
 		return 0
 	}
 	f := x - float64(i)
-	return p[i] + f*(p[i+1]-p[i])
+	return p[i-cs.off] + f*(p[i+1-cs.off]-p[i-cs.off])
 }
 
 // humAbove measures harmonic k of nominal f in one spectrum: the peak
@@ -562,15 +643,16 @@ func (t *Tracker) humAbove(cs *coarse, p []float64, f float64, k int, scratchp *
 	hi := int(math.Ceil((kf*(f+t.o.SearchHz) + 1.5) / cs.df))
 	blo := int(math.Floor((kf*f - f/2) / cs.df))
 	bhi := int(math.Ceil((kf*f + f/2) / cs.df))
-	blo, bhi = max(blo, 1), min(bhi, len(p)-1)
-	lo, hi = max(lo, 1), min(hi, len(p)-1)
+	top := cs.nfft / 2 // the highest bin of the whole half-spectrum
+	blo, bhi = max(blo, 1), min(bhi, top)
+	lo, hi = max(lo, 1), min(hi, top)
 	for i := lo; i <= hi; i++ {
-		peak = math.Max(peak, p[i])
+		peak = math.Max(peak, p[i-cs.off])
 	}
 	scratch := (*scratchp)[:0]
 	for i := blo; i <= bhi; i++ {
 		if i < lo || i > hi {
-			scratch = append(scratch, p[i])
+			scratch = append(scratch, p[i-cs.off])
 		}
 	}
 	*scratchp = scratch
@@ -613,36 +695,64 @@ func selectKth(v []float64, k int) float64 {
 	return v[k]
 }
 
-func (t *Tracker) track(chans []int) (*HumTrack, error) {
-	cs := t.coarseSpectra(chans)
-	nb := len(cs.psd)
-	// Candidate nominal frequencies.
-	var noms []float64
+// nominals returns the candidate nominal frequencies.
+func (t *Tracker) nominals() []float64 {
 	switch {
 	case t.o.NominalHz > 0:
-		noms = []float64{t.o.NominalHz}
+		return []float64{t.o.NominalHz}
 	case t.o.MainsHz > 0:
-		noms = []float64{t.o.MainsHz}
+		return []float64{t.o.MainsHz}
 	default:
-		noms = []float64{50, 60}
+		return []float64{50, 60}
 	}
+}
+
+// harmonicsOf returns the harmonics of nominal f that are measured: up to
+// t.o.Harmonics, the first always, the others while their search range
+// and the phase window's band stay below t.top.
+func (t *Tracker) harmonicsOf(f float64) int {
+	k := 1
+	for k < t.o.Harmonics && float64(k+1)*(f+t.o.SearchHz)+15 <= t.top+1e-9 {
+		k++
+	}
+	return k
+}
+
+func (t *Tracker) track(chans []int) (*HumTrack, error) {
+	cs := t.coarseSpectra(chans)
+	nb := len(cs.starts)
+	noms := t.nominals()
 	var scratch []float64
+	// Each harmonic's peaks and floors summed over the blocks, [nominal]
+	// [k-1][channel of chans].
+	sps := make([][][]float64, len(noms))
+	sfs := make([][][]float64, len(noms))
+	for fi, f := range noms {
+		for range t.harmonicsOf(f) {
+			sps[fi] = append(sps[fi], make([]float64, len(chans)))
+			sfs[fi] = append(sfs[fi], make([]float64, len(chans)))
+		}
+	}
+	for b := 0; b < nb; b++ {
+		cs.load(b)
+		for fi, f := range noms {
+			for k := 1; k <= t.harmonicsOf(f); k++ {
+				for ci := range chans {
+					p, fl := t.humAbove(cs, cs.psd[ci], f, k, &scratch)
+					sps[fi][k-1][ci] += p
+					sfs[fi][k-1][ci] += fl
+				}
+			}
+		}
+	}
 	bestScore, nominal := -1.0, 0.0
 	var used []harm
-	for _, f := range noms {
+	for fi, f := range noms {
 		var hs []harm
 		score := 0.0
-		for k := 1; k <= t.o.Harmonics; k++ {
-			if float64(k)*(f+t.o.SearchHz)+15 > t.top+1e-9 && k > 1 {
-				break
-			}
+		for k := 1; k <= t.harmonicsOf(f); k++ {
 			for ci := range chans {
-				var sp, sf float64
-				for b := 0; b < nb; b++ {
-					p, fl := t.humAbove(cs, cs.psd[b][ci], f, k, &scratch)
-					sp += p
-					sf += fl
-				}
+				sp, sf := sps[fi][k-1][ci], sfs[fi][k-1][ci]
 				if !(sf > 0) {
 					continue
 				}
@@ -671,8 +781,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	ok := make([]bool, nb)
 	floors := make([]float64, len(used))
 	for b := 0; b < nb; b++ {
+		cs.load(b)
 		for j, u := range used {
-			_, fl := t.humAbove(cs, cs.psd[b][u.c], nominal, u.k, &scratch)
+			_, fl := t.humAbove(cs, cs.psd[u.c], nominal, u.k, &scratch)
 			floors[j] = fl / math.Ln2
 		}
 		score := func(i int) float64 {
@@ -680,7 +791,7 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 			s := 0.0
 			for j, u := range used {
 				if floors[j] > 0 {
-					s += cs.at(cs.psd[b][u.c], float64(u.k)*f) / floors[j]
+					s += cs.at(cs.psd[u.c], float64(u.k)*f) / floors[j]
 				}
 			}
 			return s

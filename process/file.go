@@ -62,8 +62,10 @@ type FileJob struct {
 	// computed in float64, before they are quantised to the output format
 	// (interleaved, the same number of frames; it must not keep them). It
 	// runs on the goroutine that writes the output; an error it returns
-	// fails the file. Verification uses it to measure the filter itself
-	// rather than the filter plus the output's quantisation.
+	// fails the file. When the file ends, done or not, that function is
+	// called once more with nil, nil (so that it can let go of its
+	// memory). Verification uses it to measure the filter itself rather
+	// than the filter plus the output's quantisation.
 	Observe func(job *FileJob, in wavio.Format, frames int64, f *design.Filter) func(in, out []float64) error
 	// Progress, if set, is called after each block with the frames done,
 	// from the goroutine that reads the input.
@@ -308,6 +310,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 		if see := job.Observe(&job, inF, res.Frames, filt); see != nil {
 			t, err := newTapSink(w, job.Input, see, block)
 			if err != nil {
+				see(nil, nil)
 				return res, err
 			}
 			defer t.close()
@@ -757,7 +760,10 @@ func (t *tapSink) WriteFrames(src []float64) error {
 	return t.dst.WriteFrames(src)
 }
 
-func (t *tapSink) close() { t.r.Close() }
+func (t *tapSink) close() {
+	t.see(nil, nil)
+	t.r.Close()
+}
 
 func noEOF(err error) error {
 	if errors.Is(err, io.EOF) {

@@ -125,6 +125,8 @@ type group struct {
 	ph       []float64
 	absH     []float64 // design magnitude at the FFT bins, made when judging
 	finished bool
+	// allocated says the reading buffers are made (Session.allocate).
+	allocated bool
 }
 
 type sums struct {
@@ -164,6 +166,13 @@ type Session struct {
 // check is no error: the check comes out unmeasurable, with the length it
 // needs.
 func NewSession(f *design.Filter, pts []Point, channels int, frames int64, o Options) (*Session, error) {
+	return newSession(f, pts, channels, frames, o, false)
+}
+
+// newSession is NewSession; with lazy set the reading buffers are made by
+// allocate, so that the observer can take their memory from its budget
+// first.
+func newSession(f *design.Filter, pts []Point, channels int, frames int64, o Options, lazy bool) (*Session, error) {
 	if err := o.validate(channels); err != nil {
 		return nil, err
 	}
@@ -218,11 +227,97 @@ func NewSession(f *design.Filter, pts []Point, channels int, frames int64, o Opt
 	for i := range s.acc {
 		s.acc[i] = make([]sums, len(s.chans))
 	}
+	if lazy {
+		s.fitBudget(ObserverMemory)
+		// A window made while planning is made again by allocate,
+		// within the budget.
+		s.windows = nil
+	} else {
+		s.allocate()
+	}
 	return s, nil
 }
 
+// fitBudget drops the groups of the longest segments until the reading
+// buffers fit in limit bytes: their checks come out unmeasurable, saying
+// how much memory they need and how to measure them.
+func (s *Session) fitBudget(limit int64) {
+	for len(s.groups) > 0 && s.bufferBytes() > limit {
+		gi := 0
+		for i, g := range s.groups {
+			if g.seg > s.groups[gi].seg {
+				gi = i
+			}
+		}
+		g := s.groups[gi]
+		one := &Session{o: s.o, chans: s.chans, groups: []*group{g}}
+		for _, pi := range g.plans {
+			pl := &s.plans[pi]
+			pl.seg, pl.group = 0, -1
+			pl.reason = fmt.Sprintf("not measured during apply: its %d-sample segments need %d MiB, more than the %d MiB apply --verify holds for all files at once; wavsieve verify on this file reads it", g.seg, one.bufferBytes()>>20, limit>>20)
+		}
+		s.groups = append(s.groups[:gi], s.groups[gi+1:]...)
+		for i := gi; i < len(s.groups); i++ {
+			for _, pi := range s.groups[i].plans {
+				s.plans[pi].group = i
+			}
+		}
+	}
+}
+
+// allocate makes the reading buffers of every group (once).
+func (s *Session) allocate() {
+	for _, g := range s.groups {
+		if g.allocated {
+			continue
+		}
+		g.allocated = true
+		g.setWindow(s.windowOf(g.seg))
+		g.bx, g.by = make([][]float64, len(s.chans)), make([][]float64, len(s.chans))
+		for i := range g.bx {
+			g.bx[i] = make([]float64, 0, g.seg+g.seg/2)
+			g.by[i] = make([]float64, 0, g.seg+g.seg/2)
+		}
+		g.wx, g.wy = make([]float64, g.seg), make([]float64, g.seg)
+		if g.tracked {
+			g.ph = make([]float64, g.seg)
+		}
+		if !s.o.Tone && !g.tracked {
+			g.psd = make([][]float64, len(s.chans))
+			for i := range g.psd {
+				g.psd[i] = make([]float64, g.seg/2+1)
+			}
+			g.fft = fourier.NewFFT(g.seg)
+			g.coef = make([]complex128, g.seg/2+1)
+		}
+	}
+}
+
+// bufferBytes is about the memory allocate takes: per group and checked
+// channel two reading buffers of 1.5 segments and the summed spectrum;
+// per group the window, the two windowed segments, the phase, the FFT's
+// tables and its coefficients.
+func (s *Session) bufferBytes() int64 {
+	var b int64
+	for _, g := range s.groups {
+		seg := int64(g.seg)
+		b += int64(len(s.chans)) * (3*seg + seg/2 + 1) * 8
+		b += (4*seg + 4*seg + 2*(seg/2+1)) * 8
+	}
+	return b
+}
+
+// newGroup returns a group of segments of seg samples; its window and
+// buffers are made by allocate.
 func (s *Session) newGroup(seg int, tracked bool) *group {
-	g := &group{seg: seg, win: s.windowOf(seg), tracked: tracked}
+	return &group{seg: seg, tracked: tracked}
+}
+
+// setWindow sets the group's window and the figures of it that the
+// judging uses.
+func (g *group) setWindow(win []float64) {
+	seg := g.seg
+	g.win, g.sumW2 = win, 0
 	var c float64
 	for t, w := range g.win {
 		g.sumW2 += w * w
@@ -236,24 +331,6 @@ func (s *Session) newGroup(seg int, tracked bool) *group {
 		sw += w
 	}
 	g.enbw = float64(seg) * g.sumW2 / (sw * sw)
-	g.bx, g.by = make([][]float64, len(s.chans)), make([][]float64, len(s.chans))
-	for i := range g.bx {
-		g.bx[i] = make([]float64, 0, seg+seg/2)
-		g.by[i] = make([]float64, 0, seg+seg/2)
-	}
-	g.wx, g.wy = make([]float64, seg), make([]float64, seg)
-	if tracked {
-		g.ph = make([]float64, seg)
-	}
-	if !s.o.Tone && !tracked {
-		g.psd = make([][]float64, len(s.chans))
-		for i := range g.psd {
-			g.psd[i] = make([]float64, seg/2+1)
-		}
-		g.fft = fourier.NewFFT(seg)
-		g.coef = make([]complex128, seg/2+1)
-	}
-	return g
 }
 
 // windowOf returns the window of length seg, made once per session.
