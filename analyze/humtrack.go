@@ -225,10 +225,12 @@ func (t *HumTrack) MaxRate() float64 {
 // bytes a sample per channel, about 21 MB per channel-hour at 48 kHz
 // with 9 harmonics of 50 Hz) goes to an unlinked temporary file as it
 // is written (on Linux; see lowStore), so Write holds only buffers on
-// the heap; Result maps the file read-only and adds the coarse spectra
-// (the bins within one fundamental of each harmonic) and two float64
-// arrays of the reference (16 bytes a reduced-rate sample, 84 MB per
-// hour), freed when it returns.
+// the heap; Result maps the file read-only (pages the kernel can drop)
+// and adds two float64 arrays of the reference (16 bytes a reduced-rate
+// sample, 84 MB per hour) and per-hop arrays, freed when it returns: a
+// peak of about 260 MB of Go heap in use for one hour of mono at 48 kHz
+// (measured). The coarse spectra are computed block by block and not
+// kept.
 //
 // Limits: a steady tone within the search range and the phase window's
 // band (+-15 Hz of a harmonic), as loud as the hum, pulls the track

@@ -197,6 +197,12 @@ func ToneProbe(ctx context.Context, ch Chain, o Options) (*Result, error) {
 		go func() {
 			defer wg.Done()
 			for gi := range next {
+				// After a cancellation (Ctrl-C, or another group's
+				// error) the groups left are skipped, not started.
+				if err := ctx.Err(); err != nil {
+					errs[gi] = err
+					continue
+				}
 				results[gi], frames[gi], errs[gi] = toneGroup(ctx, ch, f, groups[gi], skip, o, filepath.Join(dir, fmt.Sprintf("group-%d", gi)))
 				if errs[gi] != nil {
 					cancel()
@@ -294,7 +300,16 @@ const toneLeak = 1e-4
 // toneLeak. A tone where the design is deep (a notch centre) so ends up
 // alone.
 func toneGroups(f *design.Filter, pts []Point, segment int) [][]Point {
-	gain := func(hz float64) float64 { return math.Pow(10, f.EffectiveDB(hz)/20) }
+	// Each point's gain is evaluated once: the grouping compares every
+	// pair, and a response of a large design (1000 notches) costs
+	// milliseconds, so evaluating it per pair took minutes.
+	gains := make(map[float64]float64, len(pts))
+	for _, p := range pts {
+		if _, ok := gains[p.FrequencyHz]; !ok {
+			gains[p.FrequencyHz] = math.Pow(10, f.EffectiveDB(p.FrequencyHz)/20)
+		}
+	}
+	gain := func(hz float64) float64 { return gains[hz] }
 	leak := func(reader, other Point) float64 {
 		seg := segment
 		if seg == 0 {

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"io"
 	"math"
@@ -146,7 +147,15 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	case !fs.Changed("rate"):
 		return report(stderr, "design", usagef("no sample rate: give --rate HZ or --rate-of FILE.wav"), "")
 	}
-	f, err := design.Design(spec, *rate)
+	// From here on Ctrl-C and SIGTERM stop the design between stages and
+	// before the plot is written; a second one ends the process at once.
+	ctx, stop := signalContext()
+	defer stop()
+	f, err := design.DesignContext(ctx, spec, *rate)
+	if ctx.Err() != nil {
+		fmt.Fprintln(stderr, "wavsieve design: interrupted; nothing was written")
+		return exitFail
+	}
 	if err != nil {
 		return report(stderr, "design", sf.valueError(err), designHint(err))
 	}
@@ -154,7 +163,11 @@ func runDesign(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "wavsieve design: warning: %s\n", w)
 	}
 	if *plot != "" {
-		if err := writePlot(*plot, f); err != nil {
+		if err := writePlot(ctx, *plot, f); err != nil {
+			if ctx.Err() != nil {
+				fmt.Fprintln(stderr, "wavsieve design: interrupted; nothing was written")
+				return exitFail
+			}
 			return report(stderr, "design", err, "")
 		}
 	}
@@ -184,13 +197,18 @@ func designHint(err error) string {
 
 // writePlot renders the plot to a temporary file beside name and renames
 // it into place, so a failed render leaves nothing behind.
-func writePlot(name string, f *design.Filter) error {
+func writePlot(ctx context.Context, name string, f *design.Filter) error {
 	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(name), "."))
 	if ext != "svg" && ext != "png" {
 		return usagef("--plot %s: the file name must end in .svg or .png", name)
 	}
 	var buf bytes.Buffer
 	if err := plots.Design(f, &buf, ext, plots.DesignOptions{}); err != nil {
+		return err
+	}
+	// Drawing a large design takes seconds: a Ctrl-C meanwhile writes
+	// nothing.
+	if err := ctx.Err(); err != nil {
 		return err
 	}
 	return writeFileAtomic(name, buf.Bytes())

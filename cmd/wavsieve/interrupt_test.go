@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"github.com/wavsieve/wavsieve/analyze"
+	"github.com/wavsieve/wavsieve/design"
 )
 
 // TestHelperSignalContext runs signalContext when started by
@@ -121,4 +122,26 @@ func TestInterruptedReadsStop(t *testing.T) {
 			t.Fatalf("got error %q; want interrupted and no result", f.Error)
 		}
 	})
+}
+
+// TestDesignPlotInterrupted: a Ctrl-C (a cancelled context) while the
+// design's plot is drawn writes no plot and no temporary.
+func TestDesignPlotInterrupted(t *testing.T) {
+	spec, err := design.ParseSpec([]byte(`{"stages": [{"family": "notch", "fundamental_hz": 50, "harmonics": 3, "bandwidth_hz": 2}]}`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err := design.Design(spec, 48000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if err := writePlot(ctx, filepath.Join(dir, "d.svg"), f); !errors.Is(err, context.Canceled) {
+		t.Fatalf("got %v, want context.Canceled", err)
+	}
+	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
+		t.Fatalf("left %v", ents)
+	}
 }

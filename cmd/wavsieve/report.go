@@ -65,6 +65,10 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if isDir(*output) {
 		return report(stderr, "report", usagef("--output %s is a folder; give the report's file name, for example --output %s", *output, filepath.Join(*output, "report.html")), "")
 	}
+	// From here on Ctrl-C and SIGTERM stop the report before its file is
+	// written; a second one ends the process at once.
+	ctx, stop := signalContext()
+	defer stop()
 	opt := htmlreport.Options{MaxSeconds: *maxS}
 	var r htmlreport.Report
 	for i, name := range *from {
@@ -92,8 +96,17 @@ func runReport(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 		return exitOK
 	}
+	if ctx.Err() != nil {
+		fmt.Fprintln(stderr, "wavsieve report: interrupted; nothing was written")
+		return exitFail
+	}
 	if err := writeFileAtomic(*output, b.Bytes()); err != nil {
 		return report(stderr, "report", err, "")
+	}
+	if ctx.Err() != nil {
+		// The signal came while the file was written: it is complete.
+		fmt.Fprintf(stderr, "wavsieve report: interrupted after %s was written in full\n", *output)
+		return exitFail
 	}
 	files := "files"
 	if len(r.Files) == 1 {

@@ -8,11 +8,8 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"os/signal"
 	"path/filepath"
 	"strings"
-	"syscall"
 
 	"github.com/spf13/pflag"
 	"github.com/wavsieve/wavsieve/analyze"
@@ -212,7 +209,9 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return report(stderr, "verify", usagef("--rate is for --probe without --input; the files carry their rate"), "")
 	}
 
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	// From here on Ctrl-C and SIGTERM stop the measurement at its next
+	// check; a second one ends the process at once.
+	ctx, stop := signalContext()
 	defer stop()
 	vo := verify.Options{Channels: only, Segment: o.segment, NewTracker: analyze.NewHumTracker}
 	doc := verifyDocument{Checks: []verify.Check{}, Note: verifyNote}
@@ -223,6 +222,10 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			res, err = runProbe(ctx, p.spec, p.in, p.out, o, only, vo)
 		} else {
 			res, err = verify.Files(ctx, p.spec, p.in, p.out, vo)
+		}
+		if err != nil && ctx.Err() != nil {
+			fmt.Fprintln(stderr, "wavsieve verify: interrupted; nothing was written")
+			return exitFail
 		}
 		if err != nil {
 			if _, ok := design.ValueOf(err); ok && o.sf.file == "" && fs.Changed("family") {

@@ -500,6 +500,13 @@ func (r *Reader) readHeader() error {
 // to it in the file, or skips it when it is larger than the limit or
 // beyond the metadata budget.
 func (r *Reader) keepChunk(id string, size, start int64, after bool) error {
+	if !isFourCC([]byte(id)) {
+		// Not a chunk any writer can copy: its id is not four printable
+		// characters (RIFF's FOURCC), so it cannot be written back.
+		r.warn(WarnChunkDropped, start, "chunk with the id %q, not four printable characters, is not kept", id)
+		_, err := r.discard(size)
+		return noEOF(err)
+	}
 	if size > r.opts.MaxChunkSize {
 		r.warn(WarnChunkDropped, start, "%q chunk of %d bytes exceeds the %d-byte limit and is not kept", id, size, r.opts.MaxChunkSize)
 		_, err := r.discard(size)
