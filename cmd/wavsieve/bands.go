@@ -614,8 +614,8 @@ func printBandStage(w io.Writer, f *design.Filter, i int, st design.Designed) {
 }
 
 // maskRows gives the JSON rows of a stage's tolerance mask (a band
-// stage's class 1 mask) with the designed response at each; nil when the
-// stage has none.
+// stage's class 1 mask, a weighting's table) with the designed response
+// at each; nil when the stage has none.
 func maskRows(f *design.Filter, st design.Designed) []maskJSON {
 	one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
 	var rows []maskJSON

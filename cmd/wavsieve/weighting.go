@@ -71,17 +71,7 @@ func weightingDocument(f *design.Filter, st design.Designed) (*weightingJSON, []
 		c := w.Class
 		wj.Class = &c
 	}
-	one := &design.Filter{SampleRate: f.SampleRate, Stages: []design.Designed{st}}
-	var rows []maskJSON
-	for _, m := range st.Mask {
-		v := one.MagnitudeDB(m.FrequencyHz)
-		rows = append(rows, maskJSON{
-			Label: m.Label, FrequencyHz: m.FrequencyHz, TargetDB: finitePtr(m.TargetDB),
-			LowerDB: finitePtr(m.LowerDB), UpperDB: finitePtr(m.UpperDB),
-			DesignedDB: v, Within: m.Within(v), Source: m.Source,
-		})
-	}
-	return wj, rows
+	return wj, maskRows(f, st)
 }
 
 // printWeighting prints the report of a weighting stage.
