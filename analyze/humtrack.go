@@ -752,7 +752,11 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 			sfs[fi] = append(sfs[fi], make([]float64, len(chans)))
 		}
 	}
-	for b := 0; b < nb; b++ {
+	// The harmonics are chosen on blocks that do not overlap (every
+	// fourth): an average over the file needs no more, and each block
+	// loaded costs an FFT per channel.
+	every := max(1, int(math.Round(trackCoarseSeconds/trackCoarseHopSeconds)))
+	for b := 0; b < nb; b += every {
 		if err := cs.load(b); err != nil {
 			return nil, err
 		}
@@ -1012,7 +1016,7 @@ func (t *Tracker) phasePass(segs [][]float32, used []harm, ref []float64, m int,
 		var pp, q complex128
 		w := 2 * math.Pi * kf / t.rate
 		j1, j2 := 0, 0 // i mod L and 2i mod L
-		for i := 0; i < n; i++ {
+		for i := 0; i < n; {
 			snap(i)
 			if i%trackExactEvery == 0 {
 				ph := kf * cyc[i]
@@ -1024,31 +1028,44 @@ func (t *Tracker) phasePass(segs [][]float32, used []harm, ref []float64, m int,
 				sn, co = math.Sincos(2 * math.Pi * a)
 				q = complex(co, -sn)
 			}
-			v := float64(x[i])
-			d := complex(v*real(pp), v*imag(pp))
-			pp *= q
-			if i+1 < n {
-				e := w * (ref[i+1] - ref[i])
-				q *= complex(1-e*e/2, -e)
+			// Up to the next snapshot or exact setting, the samples run
+			// through without either check.
+			e := min(n, (i/trackExactEvery+1)*trackExactEvery)
+			if hs < m {
+				e = min(e, max(0, first[hs]))
 			}
-			// d r and d conj(r) share their four products (the same
-			// values as the complex products give).
-			r1 := rot[j1]
-			r2 := rot[j2]
-			if j1++; j1 == L {
-				j1 = 0
+			if he < m {
+				e = min(e, first[he]+lw)
 			}
-			if j2 += 2; j2 >= L {
-				j2 -= L
+			s0, s1, s2, s3, s4 := run[0], run[1], run[2], run[3], run[4]
+			for ; i < e; i++ {
+				v := float64(x[i])
+				d := complex(v*real(pp), v*imag(pp))
+				pp *= q
+				if i+1 < n {
+					e := w * (ref[i+1] - ref[i])
+					q *= complex(1-e*e/2, -e)
+				}
+				// d r and d conj(r) share their four products (the same
+				// values as the complex products give).
+				r1 := rot[j1]
+				r2 := rot[j2]
+				if j1++; j1 == L {
+					j1 = 0
+				}
+				if j2 += 2; j2 >= L {
+					j2 -= L
+				}
+				dr, di := real(d), imag(d)
+				ac, bd, ad, bc := dr*real(r1), di*imag(r1), dr*imag(r1), di*real(r1)
+				s0 += d
+				s1 += complex(ac-bd, ad+bc)
+				s2 += complex(ac+bd, bc-ad)
+				ac, bd, ad, bc = dr*real(r2), di*imag(r2), dr*imag(r2), di*real(r2)
+				s3 += complex(ac-bd, ad+bc)
+				s4 += complex(ac+bd, bc-ad)
 			}
-			dr, di := real(d), imag(d)
-			ac, bd, ad, bc := dr*real(r1), di*imag(r1), dr*imag(r1), di*real(r1)
-			run[0] += d
-			run[1] += complex(ac-bd, ad+bc)
-			run[2] += complex(ac+bd, bc-ad)
-			ac, bd, ad, bc = dr*real(r2), di*imag(r2), dr*imag(r2), di*real(r2)
-			run[3] += complex(ac-bd, ad+bc)
-			run[4] += complex(ac+bd, bc-ad)
+			run = sums{s0, s1, s2, s3, s4}
 		}
 		snap(n)
 		z := make([]complex128, m)

@@ -250,7 +250,10 @@ const prerollChunkFrames = 8192
 // started from rest takes seconds to reach its depth.
 func preroll(f *design.Filter, t *tracked, c *Cascade, tv *trackComb, ch int) error {
 	tones := toneSet(f, t, t.tracks[0].At(0))
-	pad := f.DecaySamples(80, 1) // the dominant pole's figure, without simulation
+	// Long enough for the start from rest to fall by 60 dB, 20 dB under
+	// what is left of the hum after a 40 dB notch (the dominant pole's
+	// figure, without simulation).
+	pad := f.DecaySamples(60, 1)
 	pad = min(pad, memBudget/4/(8*ch))
 	m := len(t.head) / ch
 	if len(tones) == 0 || m < 2*(1+2*len(tones)) || pad == 0 {
