@@ -84,6 +84,19 @@ const (
 	// trackMaxWeightDB caps a harmonic's signal-to-floor ratio in the
 	// weights (the estimate's own bias, not noise, limits it beyond).
 	trackMaxWeightDB = 60.0
+	// trackChunkSeconds is the longest stretch whose fine track is
+	// computed at once; a longer signal is cut into equal parts no
+	// longer than this, so that the working memory does not grow with
+	// the file's length.
+	trackChunkSeconds = 120.0
+	// trackMarginSeconds is the signal taken on each side of a part and
+	// dropped from its track: a point of the track depends on the signal
+	// within about 2 s of it (3 passes of fits over +-0.5 s, the 0.2 s
+	// phase window, the floor's +-0.1 s), so 10 s leave the part's own
+	// points as they would be from the whole signal, up to the medians
+	// (of the harmonics' amplitudes, weights and fit differences), which
+	// are each part's own.
+	trackMarginSeconds = 10.0
 )
 
 // trackSmoothSpans are the half-widths of the local linear fits that
@@ -225,12 +238,17 @@ func (t *HumTrack) MaxRate() float64 {
 // bytes a sample per channel, about 21 MB per channel-hour at 48 kHz
 // with 9 harmonics of 50 Hz) goes to an unlinked temporary file as it
 // is written (on Linux; see lowStore), so Write holds only buffers on
-// the heap; Result maps the file read-only (pages the kernel can drop)
-// and adds two float64 arrays of the reference (16 bytes a reduced-rate
-// sample, 84 MB per hour) and per-hop arrays, freed when it returns: a
-// peak of about 260 MB of Go heap in use for one hour of mono at 48 kHz
-// (measured). The coarse spectra are computed block by block and not
-// kept.
+// the heap. Result reads it back one coarse block at a time, then
+// computes the fine track in parts of at most 2 minutes, each read back
+// with 10 s on either side whose points are dropped (a point depends on
+// the signal within about 2 s of it): it holds one part's working arrays
+// (about 20 bytes a reduced-rate sample and 400 bytes a hop, some 7 MB at
+// 48 kHz) and the track itself (9 bytes a hop, 1.6 MB an hour), however
+// long the signal. The coarse spectra are computed block by block and not
+// kept. Each part takes its own medians (of the harmonics' amplitudes, the
+// weights and the fits' differences), which follow a hum whose level
+// changes over hours; within a part the track is what the whole signal
+// would give to a tenth of the tracking tolerance (tested).
 //
 // Limits: a steady tone within the search range and the phase window's
 // band (+-15 Hz of a harmonic), as loud as the hum, pulls the track
@@ -248,7 +266,8 @@ type Tracker struct {
 	base   int64       // input index of pend[c][0]
 	next   int64       // next output index
 	store  *lowStore   // the reduced-rate signal, per channel
-	low    [][]float32 // per channel, the reduced-rate signal while Result runs
+	n      int         // reduced-rate samples kept, once Result runs
+	chunkS float64     // longest part tracked at once, seconds (trackChunkSeconds)
 	frames int64
 	done   bool // Result ran: out and err are its answer
 	out    []*HumTrack
@@ -300,7 +319,7 @@ func NewTracker(o TrackOptions) (*Tracker, error) {
 	} else if o.MainsHz > 0 {
 		nominal = o.MainsHz
 	}
-	t := &Tracker{o: o}
+	t := &Tracker{o: o, chunkS: trackChunkSeconds}
 	// Highest frequency tracked, kept below 0.4 of the rate.
 	k := o.Harmonics
 	for k > 1 && float64(k)*(nominal+o.SearchHz)+15 > 0.4*o.SampleRate {
@@ -490,15 +509,10 @@ func (t *Tracker) result() ([]*HumTrack, error) {
 	if float64(n) < 2*trackCoarseSeconds*t.rate {
 		return nil, fmt.Errorf("analyze: %w: %.2f s of signal is too short to track hum; %g s at least", ErrInvalidOption, float64(t.frames)/t.o.SampleRate, 2*trackCoarseSeconds)
 	}
-	low, release, err := t.store.view(n)
-	if err != nil {
+	if err := t.store.finish(); err != nil {
 		return nil, err
 	}
-	t.low = low
-	defer func() {
-		t.low = nil
-		release()
-	}()
+	t.n = n
 	var groups [][]int
 	if t.o.PerChannel {
 		for c := 0; c < t.o.Channels; c++ {
@@ -548,11 +562,12 @@ type coarse struct {
 	fft       *realFFT
 	ones, win []float64
 	buf       []float64
+	x         []float32 // one block of one channel
 	z, coef   []complex128
 }
 
 func (t *Tracker) coarseSpectra(chans []int) *coarse {
-	n := len(t.low[0])
+	n := t.n
 	bl := int(math.Round(trackCoarseSeconds * t.rate))
 	hop := int(math.Round(trackCoarseHopSeconds * t.rate))
 	nfft := 1
@@ -587,6 +602,7 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 	}
 	cs.off, cs.last = min(first, last), max(first, last)
 	cs.buf = make([]float64, nfft)
+	cs.x = make([]float32, bl)
 	cs.psd = make([][]float64, len(chans))
 	for i := range cs.psd {
 		cs.psd[i] = make([]float64, cs.last-cs.off+1)
@@ -598,10 +614,12 @@ func (t *Tracker) coarseSpectra(chans []int) *coarse {
 }
 
 // load computes the spectra of block b into cs.psd.
-func (cs *coarse) load(b int) {
-	s, bl, buf := cs.starts[b], cs.bl, cs.buf
+func (cs *coarse) load(b int) error {
+	s, bl, buf, x := cs.starts[b], cs.bl, cs.buf, cs.x
 	for ci, c := range cs.chans {
-		x := cs.t.low[c][s : s+bl]
+		if err := cs.t.store.read(c, s, x); err != nil {
+			return err
+		}
 		clear(buf)
 		mean := 0.0
 		for i := 0; i < bl; i++ {
@@ -619,6 +637,7 @@ func (cs *coarse) load(b int) {
 			p[i] = real(v)*real(v) + imag(v)*imag(v)
 		}
 	}
+	return nil
 }
 
 // at interpolates a power spectrum (bins cs.off on) linearly at hz; 0
@@ -734,7 +753,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 		}
 	}
 	for b := 0; b < nb; b++ {
-		cs.load(b)
+		if err := cs.load(b); err != nil {
+			return nil, err
+		}
 		for fi, f := range noms {
 			for k := 1; k <= t.harmonicsOf(f); k++ {
 				for ci := range chans {
@@ -781,7 +802,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	ok := make([]bool, nb)
 	floors := make([]float64, len(used))
 	for b := 0; b < nb; b++ {
-		cs.load(b)
+		if err := cs.load(b); err != nil {
+			return nil, err
+		}
 		for j, u := range used {
 			_, fl := t.humAbove(cs, cs.psd[u.c], nominal, u.k, &scratch)
 			floors[j] = fl / math.Ln2
@@ -823,14 +846,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	}
 	bridge(cf, ok)
 
-	// Reference at every reduced-rate sample.
-	n := len(t.low[0])
-	ref := make([]float64, n)
-	for i := range ref {
-		ref[i] = interpAt(ct, cf, float64(i))
-	}
 	// A whole number of reduced-rate samples per hop, so that every
 	// phase step spans the same time.
+	n := t.n
 	hopN := max(1, int(math.Round(t.o.HopSeconds*t.rate)))
 	hop := float64(hopN)
 	m := (n-1)/hopN + 1
@@ -847,24 +865,78 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 		x := 2 * math.Pi * float64(i) / float64(lw-1)
 		win[i] = 0.42 - 0.5*math.Cos(x) + 0.08*math.Cos(2*x)
 	}
+	// The fine track, part by part (one part when the signal is no longer
+	// than a part and its two margins): each part is read back with its
+	// margins, tracked, and its own hops kept.
+	f := make([]float64, m)
+	valid := make([]bool, m)
+	margin := int(math.Ceil(trackMarginSeconds * t.rate / hop))
+	parts, size := 1, m
+	if most := math.Floor(t.chunkS * t.rate / hop); float64(m) > most+float64(2*margin) {
+		parts = int(math.Ceil(float64(m) / most))
+		size = (m + parts - 1) / parts
+	}
+	segs := make([][]float32, len(chans))
+	for a := 0; a < m; a += size {
+		b := min(m, a+size)
+		a0, b0 := a, b
+		if parts > 1 {
+			a0, b0 = max(0, a-margin), min(m, b+margin)
+		}
+		s0, s1 := a0*hopN, n
+		if b0 < m {
+			s1 = (b0-1)*hopN + 1
+		}
+		for ci, c := range chans {
+			segs[ci] = slices.Grow(segs[ci][:0], s1-s0)[:s1-s0]
+			if err := t.store.read(c, s0, segs[ci]); err != nil {
+				return nil, err
+			}
+		}
+		// The first reference: the coarse track at every sample.
+		ref := make([]float64, s1-s0)
+		for i := range ref {
+			ref[i] = interpAt(ct, cf, float64(s0+i))
+		}
+		pf, pv := t.fine(segs, used, ref, b0-a0, hop, win)
+		if pf == nil {
+			continue // nothing trusted in this part: bridged below
+		}
+		copy(f[a:b], pf[a-a0:b-a0])
+		copy(valid[a:b], pv[a-a0:b-a0])
+	}
+	gap := 0
+	for _, v := range valid {
+		if v {
+			gap = 0
+			continue
+		}
+		tr.Bridged++
+		gap++
+		tr.LongestGapS = math.Max(tr.LongestGapS, float64(gap)*tr.HopS)
+	}
+	if tr.Bridged == len(valid) {
+		return nil, ErrNoHum
+	}
+	bridge(f, valid)
+	tr.Hz = f
+	return tr, nil
+}
+
+// fine tracks one stretch of the signal (segs, per channel of the
+// track's channels; ref is the first reference at each of its samples
+// and is overwritten) over its m hops: trackPasses phase passes, each
+// measured against the previous one's track. It returns the fundamental
+// at each hop (bridged where nothing was trusted) and where it was
+// measured, or nil when nothing could be trusted in some pass.
+func (t *Tracker) fine(segs [][]float32, used []harm, ref []float64, m int, hop float64, win []float64) ([]float64, []bool) {
 	var f []float64
 	var valid []bool
 	noise := make([][]float64, len(used))
 	for pass := 0; pass < trackPasses; pass++ {
-		f, valid = t.phasePass(chans, used, ref, m, hop, win, pass == 0, noise)
-		tr.Bridged, tr.LongestGapS = 0, 0
-		gap := 0
-		for _, v := range valid {
-			if v {
-				gap = 0
-				continue
-			}
-			tr.Bridged++
-			gap++
-			tr.LongestGapS = math.Max(tr.LongestGapS, float64(gap)*tr.HopS)
-		}
-		if tr.Bridged == len(valid) {
-			return nil, ErrNoHum
+		f, valid = t.phasePass(segs, used, ref, m, hop, win, pass == 0, noise)
+		if !slices.Contains(valid, true) {
+			return nil, nil
 		}
 		bridge(f, valid)
 		// The new reference.
@@ -879,8 +951,7 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 			ref[i] = f[j] + fr*(f[j+1]-f[j])
 		}
 	}
-	tr.Hz = f
-	return tr, nil
+	return f, valid
 }
 
 // phasePass measures each harmonic's phase against k times the phase
@@ -890,7 +961,7 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 // reference has kinks at its points that a smoothed deviation alone
 // would keep); otherwise it smooths the deviation alone and adds it to
 // the reference, which takes the smoothing's bias down pass by pass.
-func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop float64, win []float64, whole bool, floors [][]float64) ([]float64, []bool) {
+func (t *Tracker) phasePass(segs [][]float32, used []harm, ref []float64, m int, hop float64, win []float64, whole bool, floors [][]float64) ([]float64, []bool) {
 	n := len(ref)
 	// Reference phase, in cycles (the fraction is what matters; float64
 	// keeps 1e-9 cycles after 10 hours of 60 Hz).
@@ -921,7 +992,7 @@ func (t *Tracker) phasePass(chans []int, used []harm, ref []float64, m int, hop 
 		first[h] = int(math.Round(float64(h)*hop)) - hw
 	}
 	demod := func(c int, kf float64) []complex128 {
-		x := t.low[chans[c]]
+		x := segs[c]
 		var run sums
 		hs, he := 0, 0 // next hop whose start / end snapshot is due
 		snap := func(i int) {

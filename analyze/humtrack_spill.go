@@ -13,11 +13,10 @@ const lowFlush = 16384
 
 // lowStore keeps the reduced-rate signal of each channel. Where the
 // system allows (spillLow), each channel's samples go to an unlinked
-// temporary file as they come, through a small buffer, and view maps the
-// files read-only: the pages are file-backed, so the kernel can drop
-// them under memory pressure and the Go heap holds only the buffers,
-// whatever the file's length. Without spilling, or when no temporary
-// file can be created, the samples stay on the heap.
+// temporary file as they come, through a small buffer, and read takes
+// back the stretch the tracker works on: the Go heap holds only the
+// buffers, whatever the file's length. Without spilling, or when no
+// temporary file can be created, the samples stay on the heap.
 type lowStore struct {
 	mem   [][]float32 // per channel: the unwritten samples, or all of them in memory
 	files []*os.File  // per channel, once the first buffer is written; nil in memory
@@ -69,38 +68,39 @@ func (s *lowStore) flush(c int) {
 	s.mem[c] = m[:0]
 }
 
-// view returns the n samples of each channel and the function that
-// releases them (nothing may use the slices afterwards).
-func (s *lowStore) view(n int) ([][]float32, func(), error) {
-	if s.inMem {
-		return s.mem, func() {}, nil
-	}
-	if s.files == nil { // nothing written yet: all in the buffers
-		return s.mem, func() {}, nil
+// finish writes what is left in the buffers; after it, read may be
+// called.
+func (s *lowStore) finish() error {
+	if s.inMem || s.files == nil { // all in the buffers
+		return nil
 	}
 	for c := range s.mem {
 		s.flush(c)
 	}
 	if s.err != nil {
-		return nil, nil, fmt.Errorf("analyze: %w: writing the reduced-rate signal to a temporary file in %s: %w; free space there or set TMPDIR to a directory with room", ErrTrackSpill, os.TempDir(), s.err)
+		return fmt.Errorf("analyze: %w: writing the reduced-rate signal to a temporary file in %s: %w; free space there or set TMPDIR to a directory with room", ErrTrackSpill, os.TempDir(), s.err)
 	}
-	out := make([][]float32, len(s.files))
-	var unmaps []func()
-	release := func() {
-		for _, u := range unmaps {
-			u()
+	return nil
+}
+
+// read fills dst with channel c's samples from index from on (after
+// finish). The samples are read from the temporary file into dst, so the
+// process holds only what it asks for, however long the signal.
+func (s *lowStore) read(c, from int, dst []float32) error {
+	if len(dst) == 0 {
+		return nil
+	}
+	if s.inMem || s.files == nil {
+		if copy(dst, s.mem[c][from:]) < len(dst) {
+			return fmt.Errorf("analyze: %w: %d samples asked from %d, %d kept", ErrTrackSpill, len(dst), from, len(s.mem[c]))
 		}
+		return nil
 	}
-	for c, f := range s.files {
-		x, unmap, err := mapLow(f, n)
-		if err != nil {
-			release()
-			return nil, nil, fmt.Errorf("analyze: %w: mapping the reduced-rate signal in %s: %w", ErrTrackSpill, os.TempDir(), err)
-		}
-		out[c] = x
-		unmaps = append(unmaps, unmap)
+	b := unsafe.Slice((*byte)(unsafe.Pointer(&dst[0])), 4*len(dst))
+	if _, err := s.files[c].ReadAt(b, 4*int64(from)); err != nil {
+		return fmt.Errorf("analyze: %w: reading the reduced-rate signal back from its temporary file in %s: %w", ErrTrackSpill, os.TempDir(), err)
 	}
-	return out, release, nil
+	return nil
 }
 
 // close frees the files and buffers.

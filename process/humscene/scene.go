@@ -31,6 +31,10 @@ type Scene struct {
 	// Calls are the frequencies of the steady tonal calls of the clean
 	// signal (for the report of calls near a harmonic).
 	Calls []float64
+	// Moves are the spans, in seconds from the start, in which the
+	// fundamental makes its large moves (Reedmere's 1 Hz rise, Calder
+	// Fold's ramps); the slow wander is not listed.
+	Moves [][2]float64
 }
 
 // Mix returns hum + sign*clean.
@@ -86,6 +90,7 @@ func raised(t, t0, d float64) float64 {
 func Reedmere(rate, dur float64, seed uint64) *Scene {
 	s := &Scene{Name: "reedmere-pump", Rate: rate, Nominal: 50, Calls: []float64{520, 610, 740, 860}}
 	move := 0.4 * dur
+	s.Moves = [][2]float64{{move, move + 2}}
 	f := func(t float64) float64 {
 		return 50 + 0.15*math.Sin(2*math.Pi*t/23+0.4) + 0.1*math.Sin(2*math.Pi*t/9.7+1.3) + raised(t, move, 2)
 	}
@@ -132,6 +137,7 @@ func Reedmere(rate, dur float64, seed uint64) *Scene {
 // 205 Hz (-40 dBFS peak), 3 Hz or more from every harmonic over the sag.
 func CalderFold(rate, dur float64, seed uint64) *Scene {
 	s := &Scene{Name: "calderfold-generator", Rate: rate, Nominal: 60, Calls: []float64{97, 148, 205}}
+	s.Moves = [][2]float64{{0.2 * dur, 0.2*dur + 1}, {0.45 * dur, 0.45*dur + 3}, {0.6 * dur, 0.6*dur + 2}, {0.8 * dur, 0.8*dur + 1}}
 	f := func(t float64) float64 {
 		// Sags: down in 1 s at 20 %, back in 3 s at 45 %; down in 2 s at
 		// 60 %, back in 1 s at 80 % of the recording.
