@@ -21,10 +21,14 @@ func NewHumTracker(rate float64, channels int, st design.Stage, perChannel bool)
 	return humTracker{t}, nil
 }
 
-// humTracker adapts a Tracker to process.HumTracker.
+// humTracker adapts a Tracker to process.HumTracker. Its Close frees
+// the Tracker's temporary file when the track is not asked for (a pass
+// that stops early); after Tracks it does nothing.
 type humTracker struct{ t *Tracker }
 
 func (h humTracker) Write(frames []float64) { h.t.Write(frames) }
+
+func (h humTracker) Close() { h.t.Close() }
 
 func (h humTracker) Tracks() ([]process.FrequencyTrack, error) {
 	tr, err := h.t.Result()

@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process/wavio"
@@ -16,7 +17,8 @@ import (
 // designed at the file's rate (their exact float64 bits), the direction
 // (causal or zero-phase), the output sample format and the settings of
 // the job that change samples (dither, its seed when given, the channels
-// filtered, a steady start, letting non-finite samples through). Two
+// filtered, a steady start, letting non-finite samples through, a
+// tracking notch following each channel's own track). Two
 // outputs of one input with equal digests were made the same way, so a
 // later run may skip an existing output only when its recorded digest
 // matches the one it would make.
@@ -52,6 +54,12 @@ func (job FileJob) DesignDigest(f *design.Filter, out wavio.Format) string {
 	put(uint64(len(job.Only)))
 	for _, c := range job.Only {
 		put(uint64(c))
+	}
+	// Only where it changes samples (a tracking stage, several channels),
+	// and only then hashed, so that the digests of every other run stay
+	// what earlier records hold.
+	if job.TrackPerChannel && out.Channels > 1 && slices.ContainsFunc(f.Stages, func(st design.Designed) bool { return st.Spec.Tracking }) {
+		fmt.Fprint(h, "track per channel\x00")
 	}
 	return hex.EncodeToString(h.Sum(nil))[:32]
 }

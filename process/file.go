@@ -118,7 +118,10 @@ type FileResult struct {
 	// TrackRangeHz is the lowest and highest hum fundamental a tracking
 	// notch followed.
 	TrackRangeHz []float64
-	Warnings     []string
+	// TrackPerChannel is true when a tracking notch followed each
+	// channel's own track (FileJob.TrackPerChannel).
+	TrackPerChannel bool
+	Warnings        []string
 	// NonFinite counts, per channel, the NaN and infinite input samples
 	// replaced by zero (FileJob.AllowNonFinite); nil when there were none.
 	NonFinite []int64
@@ -266,6 +269,7 @@ func FilterFile(ctx context.Context, job FileJob) (res FileResult, err error) {
 			return res, fmt.Errorf("%s: tracking the hum: %w (wavsieve survey shows what hum the file holds; without tracking a fixed notch runs)", job.Input, err)
 		}
 		res.TrackRangeHz = []float64{trk.lo, trk.hi}
+		res.TrackPerChannel = job.TrackPerChannel
 		res.Warnings = append(res.Warnings, trk.warnings(filt.Stages[tIdx].Spec.FundamentalHz)...)
 		job.measured = trk.tracks
 	}

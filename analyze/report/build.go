@@ -159,10 +159,17 @@ func FromRecord(m *runrecord.Record, dir string, opt Options) (Report, error) {
 			}
 		}
 		if len(f.TrackRangeHz) == 2 {
-			sec.Facts = append(sec.Facts, [2]string{"hum track", fmt.Sprintf("the notches followed %.3f-%.3f Hz", f.TrackRangeHz[0], f.TrackRangeHz[1])})
+			fact := fmt.Sprintf("the notches followed %.3f-%.3f Hz", f.TrackRangeHz[0], f.TrackRangeHz[1])
+			if f.TrackPerChannel {
+				fact += ", each channel along its own track"
+			}
+			sec.Facts = append(sec.Facts, [2]string{"hum track", fact})
 			if svg, note, err := humTrackPlot(in, out, fileSpec, opt); err != nil {
 				sec.Facts = append(sec.Facts, [2]string{"hum track plot", "not drawn: " + err.Error()})
 			} else {
+				if f.TrackPerChannel {
+					note += " The run tracked each channel on its own; this plot shows one track measured from all channels."
+				}
 				sec.Plots = append(sec.Plots, Plot{Caption: note, SVG: svg})
 			}
 		}

@@ -126,9 +126,6 @@ func humTrackLevels(in, out string, spec design.Spec, opt Options) (plots.HumTra
 	if cut {
 		note += fmt.Sprintf(" Only the first %g s were analysed.", opt.maxSeconds())
 	}
-	if len(tracks) > 1 {
-		note += " The run may have tracked each channel; this is the shared track."
-	}
 	hp.Note = note
 	return hp, nil
 }

@@ -37,8 +37,11 @@ func (s *Session) judge(pi, ci, channel int) Check {
 		c.FrequencyHz = pl.harm * s.tmean[k]
 		c.TrackRangeHz = []float64{s.tlo[k], s.thi[k]}
 		read := "read along the hum's track"
+		if s.perChannel() {
+			read = fmt.Sprintf("read along channel %d's own track of the hum", channel)
+		}
 		if pl.seg == 0 {
-			read = "to be read along the hum's track"
+			read = "to be " + read
 		}
 		c.Reason += fmt.Sprintf(" (%s as harmonic %g of a fundamental from %.3f to %.3f Hz, at %.6g Hz on average; nominal centre %.6g Hz; the limit of %.0f dB is wavsieve's own bound for a tracking notch)", read, pl.harm, s.tlo[k], s.thi[k], c.FrequencyHz, pl.p.FrequencyHz, TrackDepthDB)
 	}

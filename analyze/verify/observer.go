@@ -53,8 +53,9 @@ func (ob *Observer) Observe(job *process.FileJob, fi wavio.Format, frames int64,
 	o := ob.o
 	o.In, o.Out = fi, wavio.Format{}
 	if o.Tracks == nil {
-		// A tracking notch is read along the track the run filtered with.
-		o.Tracks = job.MeasuredTracks()
+		// A tracking notch is read along the track the run filtered
+		// with: one shared, or each channel's own.
+		o.Tracks, o.TrackPerChannel = job.MeasuredTracks(), job.TrackPerChannel
 	}
 	s, err := newSession(f, nil, fi.Channels, frames, o, true)
 	if err != nil {

@@ -31,10 +31,13 @@ type Options struct {
 	MaxSegments int
 	// Tracks is the hum's track of a run with a tracking notch stage
 	// (process.MeasureTrack: one shared by all channels, or one per
-	// channel); its notch centres are read along it. When Tracks is nil,
-	// Files measures it with NewTracker and TrackPerChannel, and the
-	// Observer takes the run's own (process.FileJob.MeasuredTracks);
-	// without a track the centres come out unmeasurable.
+	// channel); its notch centres are read along it, each channel's
+	// along its own when there is one per channel. When Tracks is nil,
+	// Files measures it with NewTracker, one track per channel with
+	// TrackPerChannel (as apply --track-per-channel filtered), and the
+	// Observer takes the run's own (process.FileJob.MeasuredTracks, with
+	// the job's TrackPerChannel); without a track the centres come out
+	// unmeasurable. Result.TrackPerChannel says which was read.
 	Tracks          []process.FrequencyTrack
 	NewTracker      process.NewHumTracker
 	TrackPerChannel bool

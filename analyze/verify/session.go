@@ -64,6 +64,10 @@ type Result struct {
 	Unmeasurable    int     `json:"unmeasurable"`
 	// Error says why a run could not be measured at all (apply --verify).
 	Error string `json:"error,omitempty"`
+	// TrackPerChannel is true when a tracking notch was read along each
+	// channel's own track of the hum (Options.TrackPerChannel), rather
+	// than along one track shared by all channels.
+	TrackPerChannel bool `json:"track_per_channel,omitempty"`
 
 	// Filter is the design the checks were judged against.
 	Filter *design.Filter `json:"-"`
@@ -689,6 +693,7 @@ func (s *Session) Result(in, out, method string) *Result {
 	for _, c := range s.chans {
 		r.Channels = append(r.Channels, c+1)
 	}
+	r.TrackPerChannel = s.perChannel()
 	for ci, c := range s.chans {
 		for pi := range s.plans {
 			r.Checks = append(r.Checks, s.judge(pi, ci, c+1))

@@ -44,6 +44,12 @@ func (s *Session) trackOf(c int) int {
 	return 0
 }
 
+// perChannel says whether a tracking notch is read along each channel's
+// own track: asked for, or given one track per channel.
+func (s *Session) perChannel() bool {
+	return s.tstage >= 0 && len(s.tracks) > 0 && (s.o.TrackPerChannel || len(s.tracks) > 1)
+}
+
 // sideBins is how far from a tracked centre, in bins of its segment, the
 // input is also read to tell the hum's line from the sound around it:
 // past the window's main lobe (lobeBins), and short of the neighbouring

@@ -234,7 +234,8 @@ wavsieve apply --json (and the run record wavsieve-manifest.json)
               "design": [{"family", "response", "order", "sections",
                           "edges_hz"}],
               "design_digest", "peak_in_dbfs", "peak_out_dbfs",
-              "clipped_samples", "dither_seed", "seconds"}]}
+              "clipped_samples", "dither_seed", "track_range_hz",
+              "track_per_channel", "seconds"}]}
   The same rows are written as wavsieve-manifest.csv; runs into one
   folder add to one record, keyed by output.
 
@@ -299,19 +300,24 @@ wavsieve verify --json
                "coherence", "random_error",
                "verdict": "pass" | "fail" | "unmeasurable", "reason",
                "lower_limit_db", "upper_limit_db", "label", "segment",
-               "averages", "resolution_hz"}, ... every check of every file],
+               "averages", "resolution_hz", "track_range_hz"}, ... every
+              check of every file],
    "files": [{"input", "output", "method", "sample_rate_hz", "zero_phase",
               "channels_checked", "frames", "skipped_frames_each_end",
               "window", "confidence_level", "passed", "failed",
               "unmeasurable", "pass", "verdict", "error",
-              "checks": [the file's checks]}]}
+              "track_per_channel", "checks": [the file's checks]}]}
   "pass" is true exactly when "verdict" is "pass": every passband-edge,
   stopband-edge, cutoff, notch and mask check measured and passed. "kind" is
   passband-edge, stopband-edge, cutoff, notch, notch-edge, passband,
   stopband or mask (a row of a standard's tolerance table, named by
   "label"). A value that does not apply is null; an interval open below
   is [null, hi]. apply --verify puts each file's document (as in "files")
-  under "verify" in the run record.
+  under "verify" in the run record. A tracking notch's centre is read
+  along the hum's track: its "frequency_hz" is the track's mean times the
+  harmonic, "track_range_hz" the range of the fundamental;
+  "track_per_channel" (apply's and verify's) is true when each channel
+  followed its own track (--track-per-channel).
 `
 
 const exitHelp = `Exit codes

@@ -277,6 +277,12 @@ func surveyOne(ctx context.Context, path string, opt analyze.SurveyOptions) surv
 	// nominal mains (or the one --mains names) within --search, and the
 	// block track below must agree with it.
 	tk, _ := analyze.NewTracker(analyze.TrackOptions{SampleRate: float64(f.SampleRate), Channels: f.Channels, MainsHz: opt.MainsHz, SearchHz: math.Min(opt.SearchHz, 4.9)})
+	if tk != nil {
+		// Every way out (an interruption, a read error, no hum to track)
+		// frees the tracker's temporary file now, not when the collector
+		// gets to it; after Result this does nothing.
+		defer tk.Close()
+	}
 	buf := make([]float64, 8192*f.Channels)
 	for {
 		if ctx.Err() != nil {

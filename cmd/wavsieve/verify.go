@@ -70,6 +70,13 @@ JSON or CSV, or the output folder, whose share records it merges), and
 verifies every file it records as done (or only --input's entry); the
 paths are as apply recorded them, so run verify from where apply ran.
 
+A tracking notch (--track, or "tracking": true) is read along the hum's
+track, measured again in --input as apply measured it: each centre is
+demodulated along the track and checked against -30 dB. Give
+--track-per-channel when apply filtered with it, so that each channel is
+read along its own track, not along one track from all channels;
+--manifest takes this from the record.
+
 This is a measurement of the given files or chain,
 not a calibrated certification.
 
@@ -118,6 +125,9 @@ type verifyOpts struct {
 	asJSON    bool
 	plot      string
 	tempDir   string
+	// trackPerChannel reads a tracking notch along each channel's own
+	// track, as apply --track-per-channel filtered.
+	trackPerChannel bool
 }
 
 func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
@@ -132,6 +142,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs.Lookup("probe").NoOptDefVal = "tones"
 	fs.IntVar(&o.rate, "rate", 0, "with --probe and no --input: the sample rate in `Hz`")
 	fs.StringVar(&o.channels, "channels", "", "check only these channels, counted from 1 (`list` such as 1,3), as apply --channels filtered")
+	fs.BoolVar(&o.trackPerChannel, "track-per-channel", false, "with --track: read the hum in each channel along its own track, as apply --track-per-channel filtered (default: one track from all channels; with --manifest, as the record says)")
 	fs.StringVar(&o.sampleFmt, "sample-format", "", "with --probe: output samples pcm16, pcm24, pcm32, float32 or float64 (default: --output's, else the input's)")
 	fs.BoolVar(&o.noDither, "no-dither", false, "with --probe: no TPDF dither, as apply --no-dither")
 	fs.Uint64Var(&o.seed, "dither-seed", 1, "with --probe: `seed` of the dither and of the probe noise")
@@ -169,8 +180,9 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 
 	type pair struct {
-		in, out string
-		spec    design.Spec
+		in, out    string
+		spec       design.Spec
+		perChannel bool // the run tracked the hum in each channel on its own
 	}
 	var pairs []pair
 	if o.manifest != "" {
@@ -186,7 +198,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 				f.spec.ZeroPhase = true
 			}
 			if o.input == "" || f.in == o.input {
-				pairs = append(pairs, pair{f.in, f.out, f.spec})
+				pairs = append(pairs, pair{f.in, f.out, f.spec, f.perChannel})
 			}
 		}
 		if len(pairs) == 0 {
@@ -203,7 +215,7 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		case o.probe == "" && (o.input == "" || o.output == ""):
 			return report(stderr, "verify", usagef("give the run's --input and --output files (or --manifest, or --probe)"), "")
 		}
-		pairs = []pair{{o.input, o.output, sp}}
+		pairs = []pair{{o.input, o.output, sp, false}}
 	}
 	if o.probe == "" && o.rate > 0 {
 		return report(stderr, "verify", usagef("--rate is for --probe without --input; the files carry their rate"), "")
@@ -218,6 +230,8 @@ func runVerify(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	for _, p := range pairs {
 		var res *verify.Result
 		var err error
+		vo := vo
+		vo.TrackPerChannel = o.trackPerChannel || p.perChannel
 		if o.probe != "" {
 			res, err = runProbe(ctx, p.spec, p.in, p.out, o, only, vo)
 		} else {
@@ -287,10 +301,12 @@ func verifyHint(err error) string {
 }
 
 // manifestPair is a file done in a recorded run, with the spec it was
-// made with.
+// made with and whether its tracking notch followed each channel's own
+// track.
 type manifestPair struct {
-	in, out string
-	spec    design.Spec
+	in, out    string
+	spec       design.Spec
+	perChannel bool
 }
 
 // readManifest returns the input, output and spec of every file done in
@@ -317,7 +333,7 @@ func readManifest(name string) ([]manifestPair, error) {
 		if err != nil {
 			return nil, fmt.Errorf("%s: the spec of %s: %w", name, f.Output, err)
 		}
-		files = append(files, manifestPair{f.Input, f.Output, sp})
+		files = append(files, manifestPair{f.Input, f.Output, sp, f.TrackPerChannel})
 	}
 	if len(files) == 0 {
 		return nil, fmt.Errorf("%s: the record holds no file done", name)

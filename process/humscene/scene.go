@@ -5,9 +5,10 @@
 // half their difference what the wanted sound drives.
 //
 // The scenes belong to the project's invented scenario (samples/README.md):
-// the drainage pump at Reedmere marsh, whose 50 Hz supply wanders, and
-// the 60 Hz generator set at the Calder Fold pump works, which sags when
-// a load switches on. Nothing here was recorded.
+// the drainage pump at Reedmere marsh, whose 50 Hz supply wanders, the
+// standby pump beside it on a 50 Hz generator set of its own, and the
+// 60 Hz generator set at the Calder Fold pump works, which sags when a
+// load switches on. Nothing here was recorded.
 package humscene
 
 import (
@@ -153,6 +154,42 @@ func CalderFold(rate, dur float64, seed uint64) *Scene {
 			v += db2amp(-40) * math.Sin(2*math.Pi*fc*t+fc)
 		}
 		s.Clean[i] = v
+	}
+	return s
+}
+
+// ReedmereStandby is the standby pump at the Reedmere pump house, run
+// from its own 50 Hz generator set while the mains pump runs, as heard
+// by a second input of the same recorder: a supply of its own, so its hum
+// does not follow Reedmere's. The set runs slow, at 49.3 Hz, sags by
+// 0.6 Hz over 1.5 s when the pump takes load at 55 % of the recording and
+// recovers over 3 s at 75 %; seven harmonics of steady level, mostly odd
+// (the pump's motor). The wanted sound is a floor of white noise at
+// -66 dBFS RMS and pulsed frog calls at 560 and 690 Hz (-36 dBFS peak).
+func ReedmereStandby(rate, dur float64, seed uint64) *Scene {
+	s := &Scene{Name: "reedmere-standby", Rate: rate, Nominal: 50, Calls: []float64{560, 690}}
+	f := func(t float64) float64 {
+		return 49.3 + 0.04*math.Sin(2*math.Pi*t/7.3) - 0.6*(raised(t, 0.55*dur, 1.5)-raised(t, 0.75*dur, 3))
+	}
+	s.build(dur, f, []float64{-32, -50, -38, -54, -42, -58, -48})
+	s.Clean = make([]float64, len(s.Hum))
+	rng := rand.New(rand.NewPCG(seed, 0x57a9d))
+	noise := db2amp(-66)
+	for i := range s.Clean {
+		s.Clean[i] = noise * rng.NormFloat64()
+	}
+	// Frogs: pulses of 50 ms every 120 ms, in bouts of 1.2 s.
+	for j, fc := range s.Calls {
+		a := db2amp(-36)
+		for bout := 0.5 + 1.1*float64(j); bout+1.2 < dur; bout += 3.7 + 1.3*float64(j) {
+			for p := 0.0; p < 1.2; p += 0.12 {
+				t0 := bout + p
+				for i := int(t0 * rate); i < int((t0+0.05)*rate) && i < len(s.Clean); i++ {
+					u := (float64(i)/rate - t0) / 0.05
+					s.Clean[i] += a * math.Sin(math.Pi*u) * math.Sin(2*math.Pi*fc*float64(i)/rate)
+				}
+			}
+		}
 	}
 	return s
 }

@@ -48,6 +48,7 @@ var columns = []column{
 	optional(integer("zero_phase_pad_frames", func(f *File) *int { return &f.PadFrames })),
 	optional(integer("edge_transient_frames", func(f *File) *int { return &f.EdgeTransient })),
 	optional(list("track_range_hz", func(f *File) *[]float64 { return &f.TrackRangeHz })),
+	optional(boolean("track_per_channel", func(f *File) *bool { return &f.TrackPerChannel })),
 	optional(asJSON("warnings", func(f *File) *[]string { return &f.Warnings })),
 	optional(list("nonfinite_samples", func(f *File) *[]int64 { return &f.NonFinite })),
 	float("seconds", func(f *File) *float64 { return &f.Seconds }),

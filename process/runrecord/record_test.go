@@ -23,7 +23,7 @@ func sampleRows() []File {
 				Design:       []process.StageSummary{{Family: "elliptic", Response: "lowpass", Order: 6, Sections: 3, EdgesHz: []float64{2000, 2500}}},
 				DesignDigest: "0123abcd",
 				PeakInDBFS:   []float64{-3.25, -0.1}, PeakOutDBFS: []float64{-6.5, -1.0 / 3}, Clipped: []int64{0, 12},
-				DitherSeed: 1 << 60, PadFrames: 100, EdgeTransient: 3, TrackRangeHz: []float64{49.8, 50.2}, Warnings: []string{"one, \"quoted\"", "two"}, NonFinite: []int64{0, 2},
+				DitherSeed: 1 << 60, PadFrames: 100, EdgeTransient: 3, TrackRangeHz: []float64{49.8, 50.2}, TrackPerChannel: true, Warnings: []string{"one, \"quoted\"", "two"}, NonFinite: []int64{0, 2},
 				Seconds: 0.125,
 			},
 			Spec:   json.RawMessage(`{"family":"elliptic","order":6}`),
