@@ -1,6 +1,7 @@
 package analyze
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -268,6 +269,7 @@ type Tracker struct {
 	store  *lowStore   // the reduced-rate signal, per channel
 	n      int         // reduced-rate samples kept, once Result runs
 	chunkS float64     // longest part tracked at once, seconds (trackChunkSeconds)
+	ctx    context.Context
 	frames int64
 	done   bool // Result ran: out and err are its answer
 	out    []*HumTrack
@@ -471,6 +473,18 @@ func foldedDot(h, x []float64) float64 {
 	return (s0 + s1) + (s2 + s3)
 }
 
+// stopped returns the context's error, wrapped, when count is a
+// multiple of 256 and the context of ResultContext is done.
+func (t *Tracker) stopped(count int) error {
+	if t.ctx == nil || count%256 != 0 {
+		return nil
+	}
+	if err := t.ctx.Err(); err != nil {
+		return fmt.Errorf("analyze: hum tracking stopped: %w", err)
+	}
+	return nil
+}
+
 // harm is one harmonic of one channel used for tracking.
 type harm struct {
 	k, c int
@@ -484,8 +498,19 @@ type harm struct {
 // temporary file and buffers; later calls return the same answer, and
 // nothing more may be written.
 func (t *Tracker) Result() ([]*HumTrack, error) {
+	return t.ResultContext(context.Background())
+}
+
+// ResultContext is Result, stopped with ctx's error (wrapped) when ctx
+// is done: checked every 256 coarse blocks (64 s of signal) and every
+// part of the fine track (2 minutes), some tenths of a second of work
+// at 48 kHz. A stopped Tracker frees its temporary file and answers
+// every later call with the same error.
+func (t *Tracker) ResultContext(ctx context.Context) ([]*HumTrack, error) {
 	if !t.done {
+		t.ctx = ctx
 		t.out, t.err = t.result()
+		t.ctx = nil
 		t.done = true
 		t.store.close()
 	}
@@ -757,6 +782,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	// loaded costs an FFT per channel.
 	every := max(1, int(math.Round(trackCoarseSeconds/trackCoarseHopSeconds)))
 	for b := 0; b < nb; b += every {
+		if err := t.stopped(b / every); err != nil {
+			return nil, err
+		}
 		if err := cs.load(b); err != nil {
 			return nil, err
 		}
@@ -806,6 +834,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	ok := make([]bool, nb)
 	floors := make([]float64, len(used))
 	for b := 0; b < nb; b++ {
+		if err := t.stopped(b); err != nil {
+			return nil, err
+		}
 		if err := cs.load(b); err != nil {
 			return nil, err
 		}
@@ -882,6 +913,9 @@ func (t *Tracker) track(chans []int) (*HumTrack, error) {
 	}
 	segs := make([][]float32, len(chans))
 	for a := 0; a < m; a += size {
+		if err := t.stopped(0); err != nil {
+			return nil, err
+		}
 		b := min(m, a+size)
 		a0, b0 := a, b
 		if parts > 1 {

@@ -1,6 +1,7 @@
 package analyze
 
 import (
+	"context"
 	"errors"
 	"math"
 	"os"
@@ -138,6 +139,24 @@ func TestTrackerSpillErrors(t *testing.T) {
 		tk.Write(x) // ignored
 		if _, err := tk.Result(); err == nil {
 			t.Error("Result after Close answered without an error")
+		}
+	})
+	t.Run("stopped", func(t *testing.T) {
+		tk, err := NewTracker(TrackOptions{SampleRate: rate, Channels: 1, NominalHz: 50})
+		if err != nil {
+			t.Fatal(err)
+		}
+		tk.Write(x)
+		ctx, cancel := context.WithCancel(context.Background())
+		cancel()
+		if _, err := tk.ResultContext(ctx); !errors.Is(err, context.Canceled) {
+			t.Errorf("error %v, want context.Canceled", err)
+		}
+		if tk.store.files != nil || tk.store.mem != nil {
+			t.Error("a stopped Result kept the temporary file or buffers")
+		}
+		if _, err := tk.Result(); !errors.Is(err, context.Canceled) {
+			t.Errorf("Result after a stop: %v, want the same error", err)
 		}
 	})
 	t.Run("result twice", func(t *testing.T) {

@@ -1,6 +1,8 @@
 package analyze
 
 import (
+	"context"
+
 	"github.com/wavsieve/wavsieve/design"
 	"github.com/wavsieve/wavsieve/process"
 )
@@ -31,7 +33,12 @@ func (h humTracker) Write(frames []float64) { h.t.Write(frames) }
 func (h humTracker) Close() { h.t.Close() }
 
 func (h humTracker) Tracks() ([]process.FrequencyTrack, error) {
-	tr, err := h.t.Result()
+	return h.TracksContext(context.Background())
+}
+
+// TracksContext is Tracks, stopped when ctx is done (Tracker.ResultContext).
+func (h humTracker) TracksContext(ctx context.Context) ([]process.FrequencyTrack, error) {
+	tr, err := h.t.ResultContext(ctx)
 	if err != nil {
 		return nil, err
 	}

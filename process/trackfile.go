@@ -112,6 +112,11 @@ func trackPass(ctx context.Context, job *FileJob, f *design.Filter, stage int, b
 	if err != nil {
 		return nil, err
 	}
+	// A pass that stops early frees the tracker's temporary file at once
+	// (after Tracks, Close does nothing).
+	if c, ok := tk.(interface{ Close() }); ok {
+		defer c.Close()
+	}
 	// The hum tracker's memory (its spectra and the reduced-rate copy
 	// while it reads; about 12 MB for two minutes of 48 kHz stereo) is
 	// held within the pool of edge buffers: at most four passes at once
@@ -144,7 +149,16 @@ func trackPass(ctx context.Context, job *FileJob, f *design.Filter, stage int, b
 			return nil, rerr
 		}
 	}
-	if t.tracks, err = tk.Tracks(); err != nil {
+	// A tracker that can be stopped is, when ctx is done (the track of a
+	// long file takes seconds).
+	if tc, ok := tk.(interface {
+		TracksContext(context.Context) ([]FrequencyTrack, error)
+	}); ok {
+		t.tracks, err = tc.TracksContext(ctx)
+	} else {
+		t.tracks, err = tk.Tracks()
+	}
+	if err != nil {
 		return nil, err
 	}
 	t.lo, t.hi, t.found = math.Inf(1), math.Inf(-1), 1

@@ -315,7 +315,7 @@ func surveyOne(ctx context.Context, path string, opt analyze.SurveyOptions) surv
 	sf.Stats, sf.Hum, sf.Rumble = sv.Stats, sv.Hum, sv.Rumble
 	sf.SuggestedSpec, sf.SpecError, sf.Notes = sv.Spec, sv.SpecError, sv.Notes
 	if tk != nil && sv.Hum != nil {
-		tracks, err := tk.Result()
+		tracks, err := tk.ResultContext(ctx)
 		switch {
 		case err != nil:
 			sf.Notes = append(sf.Notes, "no fine hum track: "+strings.TrimPrefix(err.Error(), "analyze: "))
@@ -334,6 +334,9 @@ func surveyOne(ctx context.Context, path string, opt analyze.SurveyOptions) surv
 	}
 	return sf
 }
+
+// surveyTrackShown is the most block frequencies the text output lists.
+const surveyTrackShown = 20
 
 // fineTrackAgreeHz is how far the fine track's middle may stray from the
 // block track's mean beyond their half-ranges.
@@ -401,7 +404,15 @@ func printSurvey(w io.Writer, f surveyFile) {
 	if h := f.Hum; h != nil {
 		fmt.Fprintf(w, "  mains hum %.3f Hz (%g Hz mains), drift %.3f Hz over %d blocks of %.2f s\n", h.FundamentalHz, h.MainsHz, h.DriftHz, len(h.Track), h.BlockS)
 		var tr []string
-		for _, t := range h.Track {
+		for i, t := range h.Track {
+			// A long recording's blocks would fill screens: the first and
+			// last surveyTrackShown/2, the rest in --json.
+			if n := len(h.Track); n > surveyTrackShown && i >= surveyTrackShown/2 && i < n-surveyTrackShown/2 {
+				if i == surveyTrackShown/2 {
+					tr = append(tr, fmt.Sprintf("... %d more (all in --json) ...", n-surveyTrackShown))
+				}
+				continue
+			}
 			tr = append(tr, fmt.Sprintf("%.3f", t.FundamentalHz))
 		}
 		fmt.Fprintf(w, "    track (Hz): %s\n", strings.Join(tr, " "))
